@@ -1,0 +1,156 @@
+// The propensity stage for a whole dataset, on the calling thread, in blocks (progress and
+// cancellation between blocks). parallel/pool.ts runs the same blocks on worker threads; both
+// give identical numbers because every unit's result depends only on its own inputs, the
+// settings and the seed.
+
+import type { CompiledProgram, DesignColumns } from '../rules/ir.ts';
+import type { Checked } from '../rules/types.ts';
+import {
+  allocateApsColumns, computeApsBlock, placeBlock, sliceColumns,
+  METHOD_CONSTANT, METHOD_EXACT, METHOD_SIMULATED, METHOD_UNDEFINED,
+  type ApsColumns, type ApsSettings,
+} from './aps.ts';
+import { ballPointSet, type BallPointSet } from './ball-points.ts';
+import { resolveScales, type VariableScale } from './scaling.ts';
+
+export interface Progress { stage: string; done: number; total: number }
+
+export interface PropensityOptions {
+  onProgress?: (p: Progress) => void;
+  signal?: { readonly aborted: boolean };
+  blockSize?: number;
+}
+
+export interface DeltaSummary {
+  delta: number;
+  constant: number;
+  exact: number;
+  simulated: number;
+  undefined: number;
+  /** Units with 0 < APS < 1. */
+  boundary: number;
+  /** Largest simulation standard error among simulated units (0 if none). */
+  maxSe: number;
+  /** For each atom: boundary units whose ball it crosses (which criterion identifies the estimate). */
+  straddlingByAtom: number[];
+}
+
+export interface PropensityResult extends ApsColumns {
+  scales: VariableScale[];
+  settings: ApsSettings;
+  /** Points actually used per simulated unit (replicates × per replicate). */
+  drawsUsed: number;
+  replicates: number;
+  /** Conservative Monte Carlo bound on a simulated APS's standard deviation, |q1 − q0|·0.5/√S (METHOD.md §1). */
+  mcSdBound: number;
+  summary: DeltaSummary[];
+}
+
+export class Cancelled extends Error {
+  constructor() { super('The computation was cancelled.'); this.name = 'Cancelled'; }
+}
+
+export const DEFAULT_BLOCK = 16_384;
+
+export function validateSettings(settings: ApsSettings, basePath = 'settings'): Checked<ApsSettings> {
+  const problems = [];
+  if (!Array.isArray(settings.deltas) || settings.deltas.length === 0) {
+    problems.push({ path: `${basePath}.deltas`, message: 'Give at least one delta (the neighbourhood radius in scaled units), for example [0.05, 0.1, 0.2].' });
+  } else {
+    settings.deltas.forEach((d, i) => {
+      if (typeof d !== 'number' || !(d > 0) || !Number.isFinite(d)) {
+        problems.push({ path: `${basePath}.deltas[${i}]`, message: `Each delta must be a positive number; ${JSON.stringify(d)} is not.` });
+      }
+    });
+  }
+  if (!Number.isInteger(settings.draws) || settings.draws < 32 || settings.draws > 1_000_000) {
+    problems.push({ path: `${basePath}.draws`, message: 'draws must be a whole number from 32 to 1,000,000 (4,000 is a good default).' });
+  }
+  if (!Number.isInteger(settings.seed) || settings.seed < 0 || settings.seed > Number.MAX_SAFE_INTEGER) {
+    problems.push({ path: `${basePath}.seed`, message: 'seed must be a whole number, 0 or more.' });
+  }
+  return problems.length ? { ok: false, problems } : { ok: true, value: settings };
+}
+
+export function summarize(program: CompiledProgram, result: ApsColumns): DeltaSummary[] {
+  return result.deltas.map((delta, k) => {
+    const counts = [0, 0, 0, 0];
+    let boundary = 0;
+    let maxSe = 0;
+    const straddlingByAtom = program.atoms.map(() => 0);
+    const aps = result.aps[k]!;
+    const method = result.method[k]!;
+    const straddle = result.straddle[k]!;
+    const se = result.se[k]!;
+    for (let r = 0; r < result.n; r++) {
+      counts[method[r]!]!++;
+      if (method[r] === METHOD_SIMULATED && se[r]! > maxSe) maxSe = se[r]!;
+      const p = aps[r]!;
+      if (p > 0 && p < 1) {
+        boundary++;
+        const mask = straddle[r]!;
+        if (mask) for (let a = 0; a < straddlingByAtom.length && a < 32; a++) if (mask & (1 << a)) straddlingByAtom[a]!++;
+      }
+    }
+    return {
+      delta,
+      constant: counts[METHOD_CONSTANT]!,
+      exact: counts[METHOD_EXACT]!,
+      simulated: counts[METHOD_SIMULATED]!,
+      undefined: counts[METHOD_UNDEFINED]!,
+      boundary,
+      maxSe,
+      straddlingByAtom,
+    };
+  });
+}
+
+/** Everything a block computation needs besides its rows; plain data, so it can cross to a worker. */
+export interface PreparedDesign {
+  scales: VariableScale[];
+  points: BallPointSet;
+}
+
+export function prepareDesign(program: CompiledProgram, cols: DesignColumns, settings: ApsSettings): Checked<PreparedDesign> {
+  const s = validateSettings(settings);
+  if (!s.ok) return s;
+  const scales = resolveScales(program, cols);
+  if (!scales.ok) return scales;
+  return { ok: true, value: { scales: scales.value, points: ballPointSet(program.continuous.length, settings.draws, settings.seed) } };
+}
+
+export function finishResult(program: CompiledProgram, columns: ApsColumns, prepared: PreparedDesign, settings: ApsSettings): PropensityResult {
+  const { ifEligible, ifIneligible } = program.offer;
+  const drawsUsed = prepared.points.replicates * prepared.points.perReplicate;
+  return {
+    ...columns,
+    scales: prepared.scales,
+    settings: { deltas: settings.deltas.slice(), draws: settings.draws, seed: settings.seed },
+    drawsUsed,
+    replicates: prepared.points.replicates,
+    mcSdBound: (Math.abs(ifEligible - ifIneligible) * 0.5) / Math.sqrt(drawsUsed),
+    summary: summarize(program, columns),
+  };
+}
+
+/** Single-threaded propensity stage. Throws Cancelled if the signal is raised. */
+export function computePropensity(
+  program: CompiledProgram,
+  cols: DesignColumns,
+  settings: ApsSettings,
+  options: PropensityOptions = {},
+): Checked<PropensityResult> {
+  const prepared = prepareDesign(program, cols, settings);
+  if (!prepared.ok) return prepared;
+  const scaleValues = prepared.value.scales.map((s) => s.scale);
+  const block = options.blockSize ?? DEFAULT_BLOCK;
+  const out = allocateApsColumns(cols.n, settings.deltas);
+  options.onProgress?.({ stage: 'propensity', done: 0, total: cols.n });
+  for (let start = 0; start < cols.n; start += block) {
+    if (options.signal?.aborted) throw new Cancelled();
+    const end = Math.min(cols.n, start + block);
+    placeBlock(out, computeApsBlock(program, sliceColumns(cols, start, end), scaleValues, settings, prepared.value.points), start);
+    options.onProgress?.({ stage: 'propensity', done: end, total: cols.n });
+  }
+  return { ok: true, value: finishResult(program, out, prepared.value, settings) };
+}
