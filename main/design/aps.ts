@@ -105,9 +105,11 @@ function linearState(m0: number, norm: number, delta: number, op: Comparator): n
 }
 
 export interface BlockOptions {
-  /** Called after each unit block with the number of units finished in this call. */
-  onUnits?: (done: number) => void;
-  signal?: { readonly aborted: boolean };
+  /**
+   * Diagnostics only (the benchmark): simulate every criterion that moves with a continuous
+   * input, even where geometry gives the exact answer, to measure the simulation's error.
+   */
+  simulateAll?: boolean;
 }
 
 /** Compute the APS for every unit of `cols` (a block of a dataset) at every delta. Pure. */
@@ -117,7 +119,9 @@ export function computeApsBlock(
   scales: ArrayLike<number>,
   settings: ApsSettings,
   points: BallPointSet,
+  options: BlockOptions = {},
 ): ApsColumns {
+  const simulateAll = options.simulateAll === true;
   const n = cols.n;
   const d = program.continuous.length;
   const deltas = settings.deltas;
@@ -146,7 +150,6 @@ export function computeApsBlock(
   const total = points.replicates * points.perReplicate;
   const proj = plans.map((p) => (p.kind === 'linear' ? new Float64Array(total) : null));
   const projFor = new Int32Array(nAtoms).fill(-1); // unit whose projections are cached
-  const x = new Float64Array(d);
   const x0 = new Float64Array(d);
   const disc = new Float64Array(program.discrete.length);
   const repMeans = new Float64Array(points.replicates);
@@ -160,6 +163,7 @@ export function computeApsBlock(
         const p = plans[a]!;
         let s: number;
         if (p.kind === 'fixed') s = p.truth[r]!;
+        else if (simulateAll) s = UNKNOWN;
         else if (p.kind === 'linear') s = linearState(p.m0[r]!, p.norm[r]!, delta, p.op);
         else { const b = bounds[k]![a]!; s = stateFromBounds(b.lo[r]!, b.hi[r]!, p.op); }
         state[a] = s;
@@ -173,7 +177,7 @@ export function computeApsBlock(
         continue;
       }
 
-      const exact = exactAlongCommonNormal(program, plans, unknown, state, r, d, delta);
+      const exact = simulateAll ? null : exactAlongCommonNormal(program, plans, unknown, state, r, d, delta);
       if (exact !== null) {
         aps[k]![r] = qI + (qE - qI) * exact;
         method[k]![r] = METHOD_EXACT;
@@ -195,29 +199,9 @@ export function computeApsBlock(
           projFor[a] = r;
         }
       }
-      for (let j = 0; j < d; j++) { x0[j] = cols.continuous[j]![r]!; }
+      for (let j = 0; j < d; j++) x0[j] = cols.continuous[j]![r]!;
       for (let j = 0; j < disc.length; j++) disc[j] = cols.discrete[j]![r]!;
-      let undefinedPoint = false;
-      const pts = points.points;
-      for (let rep = 0; rep < points.replicates; rep++) {
-        let hits = 0;
-        const start = rep * points.perReplicate;
-        for (let s = start; s < start + points.perReplicate; s++) {
-          for (const a of unknown) {
-            const p = plans[a]!;
-            let m: number;
-            if (p.kind === 'linear') m = p.m0[r]! + delta * proj[a]![s]!;
-            else {
-              for (let j = 0; j < d; j++) x[j] = x0[j]! + delta * scales[j]! * pts[s * d + j]!;
-              m = (p as Extract<AtomPlan, { kind: 'nonlinear' }>).fn(x, disc);
-              if (Number.isNaN(m)) undefinedPoint = true;
-            }
-            state[a] = holds(m, (p as { op: Comparator }).op) ? TRUE : FALSE;
-          }
-          if (evalTree(program.tree, state)) hits++;
-        }
-        repMeans[rep] = hits / points.perReplicate;
-      }
+      const undefinedPoint = simulateUnit(program, plans, unknown, state, proj, r, delta, x0, disc, scales, points, repMeans);
       if (undefinedPoint) {
         aps[k]![r] = NaN;
         method[k]![r] = METHOD_UNDEFINED;
@@ -235,6 +219,61 @@ export function computeApsBlock(
     }
   }
   return { n, deltas: deltas.slice(), aps, se, method, straddle };
+}
+
+/**
+ * Estimate P(eligible) on one unit's ball from the shared point set, replicate by replicate
+ * (means written to `repMeans`). The rule's verdict for every combination of the undecided
+ * criteria is tabulated first, so each point costs one comparison per undecided criterion.
+ * Returns true if some point's margin was undefined (a division by zero inside the ball).
+ */
+function simulateUnit(
+  program: CompiledProgram,
+  plans: AtomPlan[],
+  unknown: number[],
+  state: Uint8Array,
+  proj: Array<Float64Array | null>,
+  r: number,
+  delta: number,
+  x0: Float64Array,
+  disc: Float64Array,
+  scales: ArrayLike<number>,
+  points: BallPointSet,
+  repMeans: Float64Array,
+): boolean {
+  const u = unknown.length;
+  const d = x0.length;
+  const verdict = new Uint8Array(1 << u);
+  for (let mask = 0; mask < verdict.length; mask++) {
+    for (let i = 0; i < u; i++) state[unknown[i]!] = (mask >> i) & 1 ? TRUE : FALSE;
+    verdict[mask] = evalTree(program.tree, state) ? 1 : 0;
+  }
+  for (const a of unknown) state[a] = UNKNOWN;
+  const pts = points.points;
+  const x = new Float64Array(d);
+  let undefinedPoint = false;
+  for (let rep = 0; rep < points.replicates; rep++) {
+    let hits = 0;
+    const start = rep * points.perReplicate;
+    for (let s = start; s < start + points.perReplicate; s++) {
+      let mask = 0;
+      let movedX = false;
+      for (let i = 0; i < u; i++) {
+        const p = plans[unknown[i]!]!;
+        let m: number;
+        if (p.kind === 'linear') m = p.m0[r]! + delta * proj[unknown[i]!]![s]!;
+        else if (p.kind === 'nonlinear') {
+          if (!movedX) { for (let j = 0; j < d; j++) x[j] = x0[j]! + delta * scales[j]! * pts[s * d + j]!; movedX = true; }
+          m = p.fn(x, disc);
+          if (Number.isNaN(m)) undefinedPoint = true;
+        } else continue;
+        if (holds(m, p.op)) mask |= 1 << i;
+      }
+      hits += verdict[mask]!;
+    }
+    repMeans[rep] = hits / points.perReplicate;
+  }
+  return undefinedPoint;
 }
 
 /**

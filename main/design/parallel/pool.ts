@@ -77,7 +77,7 @@ export async function computePropensityParallel(
       const onAbort = () => reject(new Cancelled());
       options.signal?.addEventListener('abort', onAbort, { once: true });
       const send = (w: Worker) => {
-        if (next >= blocks.length) return;
+        if (next >= blocks.length || options.signal?.aborted) return;
         const id = next++;
         const [s, e] = blocks[id]!;
         const slice = sliceColumns(cols, s, e);
