@@ -2,9 +2,9 @@
 // probability A(x) for every unit at its own point.
 
 import type { Comparator } from './types.ts';
-import type { Atom, CompiledProgram, DesignColumns } from './ir.ts';
-import { evalColumn, rowsMissingLookup } from './evaluate-columns.ts';
-import { evalTree, FALSE, TRUE } from './logic.ts';
+import type { Atom, BoolNode, CompiledProgram, DesignColumns } from './ir.ts';
+import { evalColumn } from './evaluate-columns.ts';
+import { FALSE, TRUE } from './logic.ts';
 
 export function holds(margin: number, op: Comparator): boolean {
   switch (op) {
@@ -17,18 +17,59 @@ export function holds(margin: number, op: Comparator): boolean {
   }
 }
 
-/** 1/0 truth of one atom for every unit at its own point. */
-export function atomTruthColumn(atom: Atom, cols: DesignColumns): Uint8Array {
+/** 1/0 truth of one atom for every unit at its own point (from its margin column, if already computed). */
+export function atomTruthColumn(atom: Atom, cols: DesignColumns, margin?: Float64Array): Uint8Array {
   const out = new Uint8Array(cols.n);
   if (atom.kind === 'member') {
     const d = cols.discrete[atom.disc]!;
     for (let r = 0; r < cols.n; r++) out[r] = atom.members.has(d[r]!) ? TRUE : FALSE;
     return out;
   }
-  const m = evalColumn(atom.margin, cols);
-  const op = atom.op;
-  for (let r = 0; r < cols.n; r++) out[r] = holds(m[r]!, op) ? TRUE : FALSE;
+  const m = margin ?? evalColumn(atom.margin, cols);
+  const n = cols.n;
+  // one loop per operator, so the comparison is not re-dispatched for every unit
+  switch (atom.op) {
+    case '<': for (let r = 0; r < n; r++) out[r] = m[r]! < 0 ? 1 : 0; break;
+    case '<=': for (let r = 0; r < n; r++) out[r] = m[r]! <= 0 ? 1 : 0; break;
+    case '>': for (let r = 0; r < n; r++) out[r] = m[r]! > 0 ? 1 : 0; break;
+    case '>=': for (let r = 0; r < n; r++) out[r] = m[r]! >= 0 ? 1 : 0; break;
+    case '==': for (let r = 0; r < n; r++) out[r] = m[r]! === 0 ? 1 : 0; break;
+    case '!=': for (let r = 0; r < n; r++) out[r] = m[r]! !== 0 ? 1 : 0; break;
+  }
   return out;
+}
+
+/** The rule's verdict for every unit, combining atom truth columns column by column. */
+export function treeColumn(node: BoolNode, truth: Uint8Array[], n: number): Uint8Array {
+  switch (node.t) {
+    case 'atom':
+      return truth[node.i]!.slice();
+    case 'not': {
+      const c = treeColumn(node.c, truth, n);
+      for (let r = 0; r < n; r++) c[r] = 1 - c[r]!;
+      return c;
+    }
+    case 'all':
+    case 'any': {
+      const out = treeColumn(node.c[0]!, truth, n);
+      for (let j = 1; j < node.c.length; j++) {
+        const c = treeColumn(node.c[j]!, truth, n);
+        if (node.t === 'all') for (let r = 0; r < n; r++) out[r] = out[r]! & c[r]!;
+        else for (let r = 0; r < n; r++) out[r] = out[r]! | c[r]!;
+      }
+      return out;
+    }
+    case 'atLeast': {
+      const count = new Uint16Array(n);
+      for (const child of node.c) {
+        const c = treeColumn(child, truth, n);
+        for (let r = 0; r < n; r++) count[r] = count[r]! + c[r]!;
+      }
+      const out = new Uint8Array(n);
+      for (let r = 0; r < n; r++) out[r] = count[r]! >= node.k ? 1 : 0;
+      return out;
+    }
+  }
 }
 
 export interface Verdicts {
@@ -42,23 +83,16 @@ export interface Verdicts {
 
 export function verdicts(program: CompiledProgram, cols: DesignColumns): Verdicts {
   const n = cols.n;
-  const truth = program.atoms.map((a) => atomTruthColumn(a, cols));
   const bad = new Set<number>();
-  for (const a of program.atoms) {
-    if (a.kind !== 'compare') continue;
-    rowsMissingLookup(a.margin, cols, bad);
+  const truth = program.atoms.map((a) => {
+    if (a.kind !== 'compare') return atomTruthColumn(a, cols);
     const m = evalColumn(a.margin, cols);
     for (let r = 0; r < n; r++) if (!Number.isFinite(m[r]!)) bad.add(r);
-  }
-  const eligible = new Uint8Array(n);
+    return atomTruthColumn(a, cols, m);
+  });
+  const eligible = n > 0 && truth.length > 0 ? treeColumn(program.tree, truth, n) : new Uint8Array(n);
   const offerProbability = new Float64Array(n);
-  const state = new Uint8Array(program.atoms.length);
   const { ifEligible, ifIneligible } = program.offer;
-  for (let r = 0; r < n; r++) {
-    for (let a = 0; a < truth.length; a++) state[a] = truth[a]![r]!;
-    const e = evalTree(program.tree, state);
-    eligible[r] = e ? 1 : 0;
-    offerProbability[r] = e ? ifEligible : ifIneligible;
-  }
+  for (let r = 0; r < n; r++) offerProbability[r] = eligible[r] ? ifEligible : ifIneligible;
   return { eligible, offerProbability, undefinedRows: [...bad].sort((a, b) => a - b) };
 }

@@ -5,7 +5,7 @@
 // a box around each unit (for proving a criterion constant on the unit's ball).
 
 import type { DesignColumns, IrNode } from './ir.ts';
-import { divI, mulI, type Interval } from './interval.ts';
+import { addI, divI, mulI, nextDown, nextUp, subI, type Interval } from './interval.ts';
 import { dependsOnContinuous } from './linearity.ts';
 
 /** Value of `node` for every unit. A lookup with no entry for a unit's value and no `else` gives NaN. */
@@ -64,44 +64,32 @@ function selectByLookup(
   const n = cols.n;
   const by = cols.discrete[node.by]!;
   const out = new Float64Array(n);
-  const constants = new Map<number, number>();
-  const computed = new Map<number, Float64Array | null>();
+  // branch b: a constant (values[b]) or a column (columns[b]; null = zero); slot −1 = otherwise
+  const values: number[] = [];
+  const columns: Array<Float64Array | null | undefined> = [];
+  const slotOf = new Map<number, number>();
+  let maxKey = -1;
+  let smallIntegers = true;
   for (const [key, branch] of node.table) {
-    if (branch.k === 'const') constants.set(key, constBranch(branch.v));
-    else computed.set(key, evalBranch(branch));
+    slotOf.set(key, values.length);
+    if (branch.k === 'const') { values.push(constBranch(branch.v)); columns.push(undefined); }
+    else { values.push(0); columns.push(evalBranch(branch)); }
+    if (Number.isInteger(key) && key >= 0 && key < 4096) maxKey = Math.max(maxKey, key);
+    else smallIntegers = false;
   }
+  // household sizes, region codes...: a dense index avoids a hash lookup per unit
+  const dense = smallIntegers ? new Int32Array(maxKey + 1).fill(-1) : null;
+  if (dense) for (const [key, slot] of slotOf) dense[key] = slot;
   const otherwise = node.otherwise === null ? undefined : evalBranch(node.otherwise);
   for (let r = 0; r < n; r++) {
     const key = by[r]!;
-    const c = constants.get(key);
-    if (c !== undefined) { out[r] = c; continue; }
-    if (computed.has(key)) { const col = computed.get(key); out[r] = col ? col[r]! : 0; continue; }
-    out[r] = otherwise === undefined ? missing : otherwise === null ? 0 : otherwise[r]!;
+    const slot = dense ? (key >= 0 && key <= maxKey && Number.isInteger(key) ? dense[key]! : -1) : slotOf.get(key) ?? -1;
+    if (slot >= 0) {
+      const col = columns[slot];
+      out[r] = col === undefined ? values[slot]! : col === null ? 0 : col[r]!;
+    } else out[r] = otherwise === undefined ? missing : otherwise === null ? 0 : otherwise[r]!;
   }
   return out;
-}
-
-/** Units (row positions) whose discrete value has no entry in some lookup of `node` and no `else`. */
-export function rowsMissingLookup(node: IrNode, cols: DesignColumns, into = new Set<number>()): Set<number> {
-  const visit = (m: IrNode): void => {
-    switch (m.k) {
-      case 'neg': visit(m.a); return;
-      case 'add': case 'sub': case 'mul': case 'div': visit(m.a); visit(m.b); return;
-      case 'min': case 'max': m.args.forEach(visit); return;
-      case 'lookup': {
-        m.table.forEach(visit);
-        if (m.otherwise) visit(m.otherwise);
-        else {
-          const by = cols.discrete[m.by]!;
-          for (let r = 0; r < cols.n; r++) if (!m.table.has(by[r]!)) into.add(r);
-        }
-        return;
-      }
-      default: return;
-    }
-  };
-  visit(node);
-  return into;
 }
 
 /**
@@ -180,7 +168,7 @@ export function intervalColumns(node: IrNode, cols: DesignColumns, halfWidth: Ar
       const h = halfWidth[node.i]!;
       const lo = new Float64Array(n);
       const hi = new Float64Array(n);
-      for (let r = 0; r < n; r++) { lo[r] = x[r]! - h; hi[r] = x[r]! + h; }
+      for (let r = 0; r < n; r++) { lo[r] = nextDown(x[r]! - h); hi[r] = nextUp(x[r]! + h); }
       return { lo, hi };
     }
     case 'neg': {
@@ -189,18 +177,13 @@ export function intervalColumns(node: IrNode, cols: DesignColumns, halfWidth: Ar
       return a;
     }
     case 'add':
-    case 'sub': {
-      const a = intervalColumns(node.a, cols, halfWidth);
-      const b = intervalColumns(node.b, cols, halfWidth);
-      if (node.k === 'add') for (let r = 0; r < n; r++) { a.lo[r] = a.lo[r]! + b.lo[r]!; a.hi[r] = a.hi[r]! + b.hi[r]!; }
-      else for (let r = 0; r < n; r++) { const l = a.lo[r]! - b.hi[r]!; a.hi[r] = a.hi[r]! - b.lo[r]!; a.lo[r] = l; }
-      return a;
-    }
+    case 'sub':
     case 'mul':
     case 'div': {
+      // the scalar operations of interval.ts round outward, so the bounds stay sound in floating point
       const a = intervalColumns(node.a, cols, halfWidth);
       const b = intervalColumns(node.b, cols, halfWidth);
-      const op = node.k === 'mul' ? mulI : divI;
+      const op = node.k === 'add' ? addI : node.k === 'sub' ? subI : node.k === 'mul' ? mulI : divI;
       for (let r = 0; r < n; r++) {
         const v: Interval = op({ lo: a.lo[r]!, hi: a.hi[r]! }, { lo: b.lo[r]!, hi: b.hi[r]! });
         a.lo[r] = v.lo; a.hi[r] = v.hi;
