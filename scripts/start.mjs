@@ -1,0 +1,39 @@
+#!/usr/bin/env node
+// `npm start`: open the desktop app when the Electron runtime is installed; otherwise say so and
+// fall back to browser mode (the same renderer served on 127.0.0.1) when it is available.
+import { existsSync } from 'node:fs';
+import { createRequire } from 'node:module';
+import { spawn } from 'node:child_process';
+import { dirname, join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+
+const root = join(dirname(fileURLToPath(import.meta.url)), '..');
+const require = createRequire(import.meta.url);
+
+function electronBinary() {
+  try {
+    const path = require('electron'); // the package exports the path of its downloaded binary
+    return typeof path === 'string' && existsSync(path) ? path : null;
+  } catch {
+    return null;
+  }
+}
+
+const serveEntry = join(root, 'main/serve.ts');
+const electronMain = join(root, 'dist/main.js');
+const binary = electronBinary();
+
+if (binary && existsSync(electronMain)) {
+  spawn(binary, [electronMain], { stdio: 'inherit' }).on('exit', (code) => process.exit(code ?? 0));
+} else if (existsSync(serveEntry)) {
+  console.error('The Electron runtime is not installed on this machine, so Fenceline opens in browser mode instead.');
+  spawn(process.execPath, ['--import', 'tsx', serveEntry, ...process.argv.slice(2)], { stdio: 'inherit', cwd: root })
+    .on('exit', (code) => process.exit(code ?? 0));
+} else {
+  console.error(
+    'The desktop app and browser mode are not built in this version of Fenceline yet.\n' +
+    'Use the command line instead, for example:\n' +
+    '  npm run --silent cli -- evaluate sample-programs/winter-credit/study.json --out out/winter-credit',
+  );
+  process.exit(1);
+}
