@@ -1,0 +1,65 @@
+// The study file (format 1, docs/study-format.md): what the CLI runs and the app saves and opens.
+// Types only — shared by main/ and the renderer.
+
+import type { Program } from '../rules/types.ts';
+
+export interface JoinSource {
+  /** Path relative to the study file. */
+  path: string;
+  sheet?: string;
+  /** Column of this source holding the unit ID. */
+  key: string;
+  headerRow?: number;
+}
+
+export interface OutcomeColumn {
+  column: string;
+  label?: string;
+}
+
+export interface ListedIn {
+  /** A source of `data.join` (by its path) whose IDs mark the units that received the benefit. */
+  listedIn: string;
+}
+
+export interface StudyColumns {
+  id: string;
+  outcomes: OutcomeColumn[];
+  treatment?: string | ListedIn;
+  /** Report the effect per this many units of an amount-valued treatment (e.g. per 1,000). */
+  treatmentPer?: number;
+  decision?: string;
+  cluster?: string;
+  covariates?: string[];
+  controls?: string[];
+}
+
+export interface StudySettings {
+  deltas: number[];
+  draws: number;
+  seed: number;
+  /** Counts from 1 to this number are suppressed in every shared output (0 turns suppression off). */
+  smallCellMax: number;
+}
+
+export interface StudyData {
+  path: string;
+  sheet?: string;
+  headerRow?: number;
+  join?: JoinSource[];
+}
+
+/** A study after validation: the program resolved to an object, settings filled with defaults. */
+export interface Study {
+  fenceline: 1;
+  title: string;
+  description?: string;
+  program: Program;
+  /** Where the program came from when the study names a separate program file. */
+  programPath?: string;
+  data: StudyData;
+  columns: StudyColumns;
+  settings: StudySettings;
+}
+
+export const DEFAULT_SETTINGS: StudySettings = { deltas: [0.05, 0.1, 0.2], draws: 4000, seed: 1, smallCellMax: 10 };
