@@ -1,0 +1,624 @@
+// The headline estimate, per outcome and per delta (docs METHOD.md §1–2; Narita & Yata 2021,
+// "Algorithm is Experiment"): in the sample of units with 0 < APS < 1 (strictly) and the outcome
+// observed,
+//   first stage   D = γ0 + γ1·Z + γ2·APS (+ controls) + ν
+//   reduced form  Y = ρ0 + ρ1·Z + ρ2·APS (+ controls) + e
+//   2SLS          Y = β0 + β1·D + β2·APS (+ controls) + ε, D instrumented by Z,
+// with HC1 standard errors, or CR1 when clusters are given (CLI.md). With one instrument and the
+// same controls in both stages the 2SLS estimate is ρ1/γ1 (indirect least squares), so all three
+// come from one factorization of [1, APS, controls, Z] (offer-design.ts); the tests check every
+// number against tsls.ts and weak-iv.ts. Weak-instrument inference: the robust first-stage F (the
+// squared robust t), the tF interval (Lee, McCrary, Moreira & Porter 2022) and the robust
+// Anderson–Rubin set (weak-iv.ts).
+//
+// Beside it, for every outcome and over all units (whatever their APS): the naive OLS of Y on D,
+// and the IV of Y on D instrumented by Z without the APS control (the study's controls kept), so a
+// memo can show how much selection the design removes.
+//
+// Without a treatment column the estimate is the effect of the offer itself: the reduced form.
+
+import { EstimateInputError } from './errors.ts';
+import { normalCritical, twoSidedNormalP } from './inference.ts';
+import {
+  cachedFactor,
+  createDesignCache,
+  factorOfferDesign,
+  offerCovarianceMatrix,
+  offerFit,
+  withVariance,
+  type DesignCache,
+  type OfferVariance,
+} from './offer-design.ts';
+import { formatNumber, gather, globalClusterCodes, indicesOf, subsetClusters } from './subset.ts';
+import type { ClusterIds, EstimateWarning, NamedColumn } from './types.ts';
+import type { ClusterCodes } from './variance.ts';
+import { solveQuadraticSet, tfInterval, WEAK_F_THRESHOLD, type ArShape } from './weak-iv.ts';
+
+/** Fewer boundary units than this earns a warning (issue 3, §6; common practice, no source). */
+export const FEW_BOUNDARY_UNITS = 50;
+/** Fewer offered (or not offered) boundary units than this earns a warning (common practice). */
+export const FEW_PER_SIDE = 10;
+
+export interface OutcomeInput {
+  /** Column name as in the data (results.json `outcomes[].column`). */
+  column: string;
+  label?: string;
+  /** One value per unit; NaN = missing (excluded and counted). */
+  values: Float64Array;
+}
+
+/** The APS per delta, one value per unit (a PropensityResult from main/design fits). */
+export interface PropensityColumns {
+  deltas: readonly number[];
+  aps: readonly Float64Array[];
+}
+
+export interface ApsIvInput {
+  outcomes: readonly OutcomeInput[];
+  /** Z: 1 if offered, 0 if not, for every unit. */
+  offer: NamedColumn;
+  /** D: what the unit received (0/1 or an amount). Omitted: the estimate is the offer's effect. */
+  treatment?: NamedColumn;
+  /** Report the effect per this many units of D (STUDY-FORMAT.md `treatmentPer`). Default 1. */
+  treatmentPer?: number;
+  propensity: PropensityColumns;
+  /** Further pre-determined linear controls beside the APS (STUDY-FORMAT.md `columns.controls`). */
+  controls?: readonly NamedColumn[];
+  /** Cluster id per unit: CR1 standard errors instead of HC1. */
+  clusters?: ClusterIds;
+  /** Confidence level of the Wald and Anderson–Rubin sets (default 0.95). tF is always 95%. */
+  level?: number;
+  /** Factorizations to share with other calls on the same data (balance checks, the other
+   * variance convention); see offer-design.ts. */
+  cache?: DesignCache;
+}
+
+/** One outcome at one delta: maps one-to-one onto results.json `outcomes[].byDelta[]`. */
+export interface DeltaEstimate {
+  delta: number;
+  /** Units with 0 < APS < 1 and the outcome observed (the estimation sample). */
+  n: number;
+  /** Of those, offered (Z = 1) and not offered. */
+  offered: number;
+  notOffered: number;
+  /** False when the effect cannot be estimated at this delta (see warnings); numbers are null. */
+  estimable: boolean;
+  estimate: number | null;
+  se: number | null;
+  ci: [number, number] | null;
+  p: number | null;
+  /** Effect of the offer on take-up; null without a treatment column. */
+  firstStage: { coef: number; se: number; F: number } | null;
+  reducedForm: { coef: number; se: number } | null;
+  /** Anderson–Rubin set as intervals, null for ±infinity (CLI.md `arCi`). */
+  arCi: Array<[number | null, number | null]> | null;
+  arShape: ArShape | null;
+  /** 95% tF interval (Lee et al. 2022); [null, null] is the whole line. */
+  tfCi: [number | null, number | null] | null;
+  /** First-stage F below 10 (Staiger & Stock 1997). */
+  weakInstrument: boolean | null;
+  variance: OfferVariance;
+  clusters: number | null;
+  /** Controls kept in the model, the APS included when it was not dropped. */
+  controls: string[];
+  /** Columns dropped as collinear (e.g. a constant APS in a pure lottery). */
+  dropped: string[];
+  warnings: EstimateWarning[];
+}
+
+/** The comparisons beside the headline (results.json `naiveOls`, `ivNoControl`). */
+export interface ComparisonEstimate {
+  estimate: number | null;
+  se: number | null;
+  n: number;
+  warnings: EstimateWarning[];
+}
+
+export interface OutcomeEstimates {
+  column: string;
+  label: string;
+  /** Units with no value for this outcome (excluded from all its estimates). */
+  missing: number;
+  byDelta: DeltaEstimate[];
+  naiveOls: ComparisonEstimate;
+  ivNoControl: ComparisonEstimate;
+}
+
+export interface ApsIvResult {
+  /** `treatment`: effect of receiving D; `offer`: effect of being offered (no D given). */
+  estimand: 'treatment' | 'offer';
+  /** One sentence on what the estimate is, for the memo. */
+  estimandNote: string;
+  treatmentPer: number;
+  outcomes: OutcomeEstimates[];
+  /** Every warning above (with its context in the message), in order, without repeats. */
+  warnings: EstimateWarning[];
+}
+
+export const APS_NAME = 'APS';
+
+export function estimateApsIv(input: ApsIvInput): ApsIvResult {
+  const n = input.offer.values.length;
+  const level = input.level ?? 0.95;
+  const critical = normalCritical(level);
+  const per = input.treatmentPer ?? 1;
+  if (!(per > 0) || !Number.isFinite(per)) {
+    throw new EstimateInputError('bad-option', `treatmentPer must be a positive number (for example 1000 to report the effect per 1,000 of the treatment); got ${String(input.treatmentPer)}.`);
+  }
+  checkInputs(input, n);
+  const controls = input.controls ?? [];
+  const warnings: EstimateWarning[] = [];
+  const cache = input.cache ?? createDesignCache();
+
+  // Units every estimate can use: treatment, controls and cluster id present.
+  const usable = new Uint8Array(n).fill(1);
+  excludeMissing(usable, input.treatment ? [input.treatment] : [], 'treatment', warnings);
+  excludeMissing(usable, controls, 'control', warnings);
+  const globalClusters = input.clusters ? globalClusterCodes(input.clusters) : undefined;
+  if (globalClusters) {
+    let missing = 0;
+    for (let i = 0; i < n; i++)
+      if (globalClusters.codes[i]! < 0) {
+        if (usable[i]) missing++;
+        usable[i] = 0;
+      }
+    if (missing > 0) {
+      warnings.push({ code: 'missing-cluster', message: `${missing} unit(s) have no cluster id; they are left out of every estimate.` });
+    }
+  }
+
+  const estimand = input.treatment ? 'treatment' : 'offer';
+  const d = input.treatment ? scaled(input.treatment.values, per) : input.offer.values;
+  const dName = input.treatment?.name ?? input.offer.name;
+  const estimandNote =
+    estimand === 'treatment'
+      ? `The estimate is the effect of receiving ${dName}${per === 1 ? '' : ` per ${formatNumber(per)} of it`} for units near the formula's edge whose receipt follows the offer (compliers).`
+      : `No treatment column was given, so the estimate is the effect of the offer itself on units near the formula's edge (the reduced form); there is no first stage.`;
+
+  // APS per delta: NaN (undefined for the unit) is counted and never in the boundary sample.
+  input.propensity.deltas.forEach((delta, k) => {
+    const aps = input.propensity.aps[k]!;
+    let undefinedCount = 0;
+    for (let i = 0; i < n; i++) if (Number.isNaN(aps[i]!) && usable[i]) undefinedCount++;
+    if (undefinedCount > 0) {
+      warnings.push({
+        code: 'aps-undefined',
+        message: `At delta ${delta}, ${undefinedCount} unit(s) have no propensity score (the formula could not be evaluated around them); they are left out at that delta.`,
+      });
+    }
+  });
+
+  const outcomes = input.outcomes.map((outcome): OutcomeEstimates => {
+    const label = outcome.label ?? outcome.column;
+    let missing = 0;
+    const observed = usable.slice();
+    for (let i = 0; i < n; i++)
+      if (!Number.isFinite(outcome.values[i]!)) {
+        if (observed[i]) missing++;
+        observed[i] = 0;
+      }
+    if (missing > 0) {
+      warnings.push({
+        code: 'missing-outcome',
+        message: `Outcome "${label}": ${missing} unit(s) have no value; they are left out of its estimates.`,
+      });
+    }
+    return {
+      column: outcome.column,
+      label,
+      missing,
+      byDelta: [],
+      naiveOls: naiveComparison(outcome, label, d, dName, observed, globalClusters, cache),
+      ivNoControl: noApsComparison(outcome, label, input.offer, d, estimand, controls, observed, globalClusters, cache),
+    };
+  });
+
+  // Per delta: one factorization per distinct estimation sample, shared by the outcomes.
+  input.propensity.deltas.forEach((delta, k) => {
+    const aps = input.propensity.aps[k]!;
+    const boundary = new Uint8Array(n);
+    let boundaryCount = 0;
+    for (let i = 0; i < n; i++)
+      if (usable[i] && aps[i]! > 0 && aps[i]! < 1) {
+        boundary[i] = 1;
+        boundaryCount++;
+      }
+    input.outcomes.forEach((outcome, j) => {
+      const label = outcomes[j]!.label;
+      const mask = boundary.slice();
+      for (let i = 0; i < n; i++) if (mask[i] && !Number.isFinite(outcome.values[i]!)) mask[i] = 0;
+      const idx = indicesOf(mask);
+      const entry = estimateAtDelta({
+        delta,
+        label,
+        idx,
+        boundaryCount,
+        y: outcome.values,
+        d,
+        estimand,
+        offer: input.offer,
+        aps,
+        controls,
+        globalClusters,
+        critical,
+        cache,
+      });
+      outcomes[j]!.byDelta.push(entry);
+    });
+  });
+
+  for (const o of outcomes) {
+    for (const w of [...o.naiveOls.warnings, ...o.ivNoControl.warnings, ...o.byDelta.flatMap((b) => b.warnings)]) warnings.push(w);
+  }
+  return { estimand, estimandNote, treatmentPer: per, outcomes, warnings: dedupe(warnings) };
+}
+
+interface DeltaJob {
+  delta: number;
+  label: string;
+  idx: Int32Array;
+  boundaryCount: number;
+  y: Float64Array;
+  d: Float64Array;
+  estimand: 'treatment' | 'offer';
+  offer: NamedColumn;
+  aps: Float64Array;
+  controls: readonly NamedColumn[];
+  globalClusters: { codes: Int32Array; count: number } | undefined;
+  critical: number;
+  cache: DesignCache;
+}
+
+function emptyEstimate(job: DeltaJob, offered: number, warnings: EstimateWarning[], variance: OfferVariance): DeltaEstimate {
+  return {
+    delta: job.delta,
+    n: job.idx.length,
+    offered,
+    notOffered: job.idx.length - offered,
+    estimable: false,
+    estimate: null,
+    se: null,
+    ci: null,
+    p: null,
+    firstStage: null,
+    reducedForm: null,
+    arCi: null,
+    arShape: null,
+    tfCi: null,
+    weakInstrument: null,
+    variance,
+    clusters: null,
+    controls: [],
+    dropped: [],
+    warnings,
+  };
+}
+
+function estimateAtDelta(job: DeltaJob): DeltaEstimate {
+  const { delta, label, idx, critical } = job;
+  const at = `At delta ${delta}`;
+  const warnings: EstimateWarning[] = [];
+  const nb = idx.length;
+  let offered = 0;
+  for (let j = 0; j < nb; j++) offered += job.offer.values[idx[j]!]! === 1 ? 1 : 0;
+  const notOffered = nb - offered;
+  let variance: OfferVariance = job.globalClusters ? 'CR1' : 'HC1';
+
+  if (job.boundaryCount === 0) {
+    warnings.push({
+      code: 'no-boundary-units',
+      message: `No units sit near the formula's edge at delta ${delta}: try a larger delta or check the scales.`,
+    });
+    return emptyEstimate(job, offered, warnings, variance);
+  }
+  if (nb === 0) {
+    warnings.push({
+      code: 'no-outcome-near-edge',
+      message: `${at}, none of the ${job.boundaryCount} units near the formula's edge has a value for outcome "${label}", so its effect cannot be estimated there.`,
+    });
+    return emptyEstimate(job, offered, warnings, variance);
+  }
+  if (offered === 0 || notOffered === 0) {
+    warnings.push({
+      code: 'no-offer-variation',
+      message: `${at}, all ${nb} units near the formula's edge with outcome "${label}" were ${offered === 0 ? 'not offered' : 'offered'} the benefit, so the offer's effect cannot be estimated there. Try a larger delta.`,
+    });
+    return emptyEstimate(job, offered, warnings, variance);
+  }
+  if (nb < FEW_BOUNDARY_UNITS) {
+    warnings.push({
+      code: 'few-boundary-units',
+      message: `${at}, only ${nb} units near the formula's edge have outcome "${label}" (fewer than ${FEW_BOUNDARY_UNITS}): the estimate and its interval are fragile. Try a larger delta.`,
+    });
+  }
+  if (offered < FEW_PER_SIDE || notOffered < FEW_PER_SIDE) {
+    warnings.push({
+      code: 'few-per-side',
+      message: `${at}, outcome "${label}": only ${offered} offered and ${notOffered} not-offered units near the formula's edge (fewer than ${FEW_PER_SIDE} on a side): the estimate rests on very few units.`,
+    });
+  }
+
+  // Design [1, APS, controls, Z] on the sample (shared with the other outcomes of the same sample).
+  let clusters: ClusterCodes | undefined;
+  if (job.globalClusters) {
+    clusters = subsetClusters(job.globalClusters, idx);
+    if (clusters.count < 2) {
+      warnings.push({
+        code: 'few-clusters',
+        message: `${at}, the units near the formula's edge with outcome "${label}" all belong to one cluster, so cluster-robust standard errors are impossible; heteroskedasticity-robust (HC1) standard errors are used instead.`,
+      });
+      clusters = undefined;
+      variance = 'HC1';
+    }
+  }
+  const kMax = job.controls.length + 3;
+  if (nb <= kMax) {
+    warnings.push({
+      code: 'too-few-units',
+      message: `${at}, ${nb} units near the formula's edge have outcome "${label}", too few for a model with ${kMax} coefficients. Try a larger delta or fewer controls.`,
+    });
+    return emptyEstimate(job, offered, warnings, variance);
+  }
+  const design = withVariance(
+    cachedFactor(job.cache, [job.offer.values, job.aps, ...job.controls.map((c) => c.values)], idx, () =>
+      factorOfferDesign({ name: job.offer.name, values: gather(job.offer.values, idx) }, [
+        { name: APS_NAME, values: gather(job.aps, idx) },
+        ...job.controls.map((c) => ({ name: c.name, values: gather(c.values, idx) })),
+      ]),
+    ),
+    clusters,
+  );
+  for (const w of design.warnings) warnings.push({ code: w.code, message: `${at}, outcome "${label}": ${w.message}` });
+  const base = {
+    ...emptyEstimate(job, offered, warnings, variance),
+    clusters: clusters?.count ?? null,
+    controls: design.keptControls,
+    dropped: design.dropped,
+  };
+  if (!design.identified) {
+    warnings.push({
+      code: 'not-identified',
+      message: `${at}, outcome "${label}": the offer "${job.offer.name}" is a linear combination of ${design.keptControls.map((c) => `"${c}"`).join(', ') || 'the intercept'} among the units near the formula's edge, so its effect cannot be separated from theirs.`,
+    });
+    return base;
+  }
+
+  const fitY = offerFit(design, gather(job.y, idx));
+  const vYY = offerCovarianceMatrix(design, [fitY.residuals])[0]!;
+  const reducedForm = { coef: fitY.coef, se: Math.sqrt(vYY) };
+
+  if (job.estimand === 'offer') {
+    // D = Z: β = ρ1 and, with V_DD = 0, the Anderson–Rubin set {β : (ρ1 − β)² ≤ q·V_YY} is the
+    // Wald interval itself.
+    const ci: [number, number] = [fitY.coef - critical * reducedForm.se, fitY.coef + critical * reducedForm.se];
+    return {
+      ...base,
+      estimable: true,
+      estimate: fitY.coef,
+      se: reducedForm.se,
+      ci,
+      p: twoSidedNormalP(fitY.coef / reducedForm.se),
+      reducedForm,
+      arCi: [ci],
+      arShape: 'interval',
+    };
+  }
+
+  const dSample = gather(job.d, idx);
+  let constant = true;
+  for (let j = 1; j < nb && constant; j++) if (dSample[j] !== dSample[0]) constant = false;
+  if (constant) {
+    warnings.push({
+      code: 'no-takeup-variation',
+      message: `${at}, outcome "${label}": every unit near the formula's edge has the same take-up (${formatNumber(dSample[0]!)}), so the offer does not move take-up and the effect of receiving the benefit cannot be estimated; the effect of the offer (reduced form) is still reported.`,
+    });
+    return { ...base, reducedForm };
+  }
+  const fitD = offerFit(design, dSample);
+  const v = offerCovarianceMatrix(design, [fitY.residuals, fitD.residuals]);
+  const vYD = v[1]!;
+  const vDD = v[3]!;
+  const piD = fitD.coef;
+  const piY = fitY.coef;
+  const F = (piD * piD) / vDD;
+  const firstStage = { coef: piD, se: Math.sqrt(vDD), F };
+  if (!(piD !== 0) || !(vDD > 0)) {
+    warnings.push({
+      code: 'no-takeup-variation',
+      message: `${at}, outcome "${label}": the offer does not change take-up among the units near the formula's edge, so the effect of receiving the benefit cannot be estimated; the effect of the offer (reduced form) is still reported.`,
+    });
+    return { ...base, reducedForm, firstStage: { coef: piD, se: Math.sqrt(vDD), F: NaN } };
+  }
+
+  const beta = piY / piD;
+  const se = Math.sqrt(Math.max(0, vYY - 2 * beta * vYD + beta * beta * vDD)) / Math.abs(piD);
+  const q = critical * critical;
+  const ar = solveQuadraticSet(piD * piD - q * vDD, -2 * (piY * piD - q * vYD), piY * piY - q * vYY);
+  const tf = tfInterval(beta, se, F);
+  const weak = !(F >= WEAK_F_THRESHOLD);
+  if (weak) {
+    warnings.push({
+      code: 'weak-instrument',
+      message: `${at}, outcome "${label}": the first-stage F statistic is ${formatNumber(F)}, below ${WEAK_F_THRESHOLD} (Staiger and Stock 1997): the offer moves take-up too little for the usual 95% interval to be trusted. Rely on the Anderson–Rubin set and the tF interval instead.`,
+    });
+  }
+  if (ar.kind !== 'interval') {
+    warnings.push({
+      code: 'ar-unbounded',
+      message: `${at}, outcome "${label}": the Anderson–Rubin confidence set is unbounded, so the data cannot rule out very large effects because the offer moves take-up too little. Treat the point estimate as uninformative.`,
+    });
+  }
+  return {
+    ...base,
+    estimable: true,
+    estimate: beta,
+    se,
+    ci: [beta - critical * se, beta + critical * se],
+    p: twoSidedNormalP(beta / se),
+    firstStage,
+    reducedForm,
+    arCi: ar.intervals,
+    arShape: ar.kind,
+    tfCi: tf.interval,
+    weakInstrument: weak,
+  };
+}
+
+/**
+ * Naive OLS of Y on D (no controls) over every unit with the outcome observed: the coefficient
+ * on the last column of [1, D], read off the shared machinery of offer-design.ts (the same
+ * HC1/CR1 sandwich as ols.ts; the tests compare the two).
+ */
+function naiveComparison(
+  outcome: OutcomeInput,
+  label: string,
+  d: Float64Array,
+  dName: string,
+  observed: Uint8Array,
+  globalClusters: { codes: Int32Array; count: number } | undefined,
+  cache: DesignCache,
+): ComparisonEstimate {
+  const idx = indicesOf(observed);
+  return comparison(idx, label, 'naive comparison', [d], () => factorOfferDesign({ name: dName, values: gather(d, idx) }, []), outcome.values, null, globalClusters, cache);
+}
+
+/** IV of Y on D instrumented by Z over every unit with the outcome observed, without the APS. */
+function noApsComparison(
+  outcome: OutcomeInput,
+  label: string,
+  offer: NamedColumn,
+  d: Float64Array,
+  estimand: 'treatment' | 'offer',
+  controls: readonly NamedColumn[],
+  observed: Uint8Array,
+  globalClusters: { codes: Int32Array; count: number } | undefined,
+  cache: DesignCache,
+): ComparisonEstimate {
+  const idx = indicesOf(observed);
+  return comparison(
+    idx,
+    label,
+    'comparison without the APS',
+    [offer.values, ...controls.map((c) => c.values)],
+    () =>
+      factorOfferDesign(
+        { name: offer.name, values: gather(offer.values, idx) },
+        controls.map((c) => ({ name: c.name, values: gather(c.values, idx) })),
+      ),
+    outcome.values,
+    estimand === 'offer' ? null : d,
+    globalClusters,
+    cache,
+  );
+}
+
+/** Coefficient on the last design column (OLS), or the IV ratio ρ/γ when d is given. */
+function comparison(
+  idx: Int32Array,
+  label: string,
+  what: string,
+  sources: readonly unknown[],
+  build: () => ReturnType<typeof factorOfferDesign>,
+  y: Float64Array,
+  d: Float64Array | null,
+  globalClusters: { codes: Int32Array; count: number } | undefined,
+  cache: DesignCache,
+): ComparisonEstimate {
+  const warnings: EstimateWarning[] = [];
+  const fail = (message: string, code: string): ComparisonEstimate => {
+    warnings.push({ code, message: `The ${what} for "${label}" could not be computed: ${message}` });
+    return { estimate: null, se: null, n: idx.length, warnings };
+  };
+  if (idx.length <= sources.length + 1) return fail('too few units with this outcome.', 'too-few-units');
+  let clusters = globalClusters ? subsetClusters(globalClusters, idx) : undefined;
+  if (clusters && clusters.count < 2) clusters = undefined;
+  const design = withVariance(cachedFactor(cache, sources, idx, build), clusters);
+  for (const w of design.warnings) warnings.push({ code: w.code, message: `The ${what} for "${label}": ${w.message}` });
+  if (!design.identified) return fail('the column it compares does not vary among these units.', 'no-variation');
+  const fitY = offerFit(design, gather(y, idx));
+  if (!d) {
+    const vYY = offerCovarianceMatrix(design, [fitY.residuals])[0]!;
+    return { estimate: fitY.coef, se: Math.sqrt(vYY), n: idx.length, warnings };
+  }
+  const fitD = offerFit(design, gather(d, idx));
+  if (!(fitD.coef !== 0)) return fail('the offer does not change take-up.', 'no-takeup-variation');
+  const beta = fitY.coef / fitD.coef;
+  const v = offerCovarianceMatrix(design, [fitY.residuals, fitD.residuals]);
+  const se = Math.sqrt(Math.max(0, v[0]! - 2 * beta * v[1]! + beta * beta * v[3]!)) / Math.abs(fitD.coef);
+  return { estimate: beta, se, n: idx.length, warnings };
+}
+
+function scaled(values: Float64Array, per: number): Float64Array {
+  if (per === 1) return values;
+  const out = new Float64Array(values.length);
+  for (let i = 0; i < values.length; i++) out[i] = values[i]! / per;
+  return out;
+}
+
+/** Units with a missing value in any of these columns are excluded and counted per column. */
+function excludeMissing(usable: Uint8Array, columns: readonly NamedColumn[], role: string, warnings: EstimateWarning[]): void {
+  for (const c of columns) {
+    let missing = 0;
+    for (let i = 0; i < usable.length; i++)
+      if (!Number.isFinite(c.values[i]!)) {
+        if (usable[i]) missing++;
+        usable[i] = 0;
+      }
+    if (missing > 0) {
+      warnings.push({
+        code: `missing-${role}`,
+        message: `The ${role} column "${c.name}" has no value for ${missing} unit(s); they are left out of every estimate.`,
+      });
+    }
+  }
+}
+
+function checkInputs(input: ApsIvInput, n: number): void {
+  const z = input.offer.values;
+  for (let i = 0; i < n; i++) {
+    if (z[i] !== 0 && z[i] !== 1) {
+      throw new EstimateInputError(
+        'bad-option',
+        `The offer column "${input.offer.name}" must be 1 (offered) or 0 (not offered) for every unit; unit ${i + 1} has ${String(z[i])}. Fix the decision column or let Fenceline compute the offer from the formula.`,
+      );
+    }
+  }
+  const lengths: Array<[string, number]> = [
+    ...input.outcomes.map((o): [string, number] => [`outcome "${o.column}"`, o.values.length]),
+    ...(input.treatment ? [[`treatment "${input.treatment.name}"`, input.treatment.values.length] as [string, number]] : []),
+    ...(input.controls ?? []).map((c): [string, number] => [`control "${c.name}"`, c.values.length]),
+    ...input.propensity.aps.map((a, k): [string, number] => [`propensity score at delta ${input.propensity.deltas[k]}`, a.length]),
+    ...(input.clusters ? [['cluster column', input.clusters.length] as [string, number]] : []),
+  ];
+  for (const [what, length] of lengths) {
+    if (length !== n) {
+      throw new EstimateInputError('length-mismatch', `The ${what} has ${length} values but the offer column has ${n}; every column needs one value per unit.`);
+    }
+  }
+  if (input.propensity.aps.length !== input.propensity.deltas.length) {
+    throw new EstimateInputError('length-mismatch', `There are ${input.propensity.deltas.length} deltas but ${input.propensity.aps.length} propensity-score columns; give one column per delta.`);
+  }
+  if (input.outcomes.length === 0) {
+    throw new EstimateInputError('bad-option', 'No outcome was given; name at least one outcome column to estimate effects on.');
+  }
+  const names = new Set<string>([input.offer.name, APS_NAME]);
+  for (const c of [...(input.treatment ? [input.treatment] : []), ...(input.controls ?? [])]) {
+    if (names.has(c.name)) {
+      throw new EstimateInputError('duplicate-name', `The column "${c.name}" is used twice (as offer, treatment, control or the APS); each column may play one role.`);
+    }
+    names.add(c.name);
+  }
+}
+
+function dedupe(warnings: readonly EstimateWarning[]): EstimateWarning[] {
+  const seen = new Set<string>();
+  const out: EstimateWarning[] = [];
+  for (const w of warnings) {
+    const key = `${w.code}\u0000${w.message}`;
+    if (!seen.has(key)) {
+      seen.add(key);
+      out.push(w);
+    }
+  }
+  return out;
+}
