@@ -13,6 +13,6 @@ function toCsv(rows: Array<Record<string, string | number>>): string {
   return [headers.join(','), ...rows.map((r) => headers.map((h) => esc(r[h]!)).join(','))].join('\r\n') + '\r\n';
 }
 
-const rows = winterCreditRows(5000, 2026);
+const rows = winterCreditRows(20000, 2026);
 writeFileSync(join(root, 'sample-programs/winter-credit/applicants.csv'), toCsv(rows as unknown as Array<Record<string, string | number>>));
 console.log(`wrote ${rows.length} invented households to sample-programs/winter-credit/applicants.csv`);

@@ -1,0 +1,103 @@
+// results.json (docs/cli.md): everything the memo says, as data. Types only, shared with the
+// renderer. The keys CLI.md requires are here with the meanings it gives; the rest extends them.
+
+import type { VariableScale } from '../design/scaling.ts';
+import type { ComparisonEstimate, DeltaEstimate } from '../estimate/aps-iv.ts';
+import type { BalanceJoint, BalanceRow } from '../estimate/balance.ts';
+import type { ComplierProfile } from '../estimate/compliers.ts';
+import type { DeltaComposition } from '../estimate/composition.ts';
+import type { ProgramDensityCheck } from '../estimate/density.ts';
+import type { LocalLinearResult } from '../estimate/local-linear.ts';
+import type { HolmRow } from '../estimate/multiplicity.ts';
+import type { SensitivityResult } from '../estimate/sensitivity.ts';
+import type { ThresholdChangeResult } from '../estimate/threshold-change.ts';
+import type { Program } from '../rules/types.ts';
+
+export interface Warning { code: string; message: string }
+
+export interface ExclusionReason { reason: string; count: number; rows: number[] }
+
+export interface StudyBlock {
+  title: string;
+  dataFile: string;
+  sheet: string | null;
+  dataSha256: string;
+  rowsRead: number;
+  rowsUsed: number;
+  rowsExcluded: ExclusionReason[];
+  joins: Array<{ source: string; sha256: string; matched: number; unmatchedKeys: { count: number; examples: string[] }; duplicateKeys: { count: number; examples: string[] } }>;
+  notes: Array<{ code: string; message: string }>;
+}
+
+export interface ProgramBlock {
+  name: string;
+  unit: string;
+  /** The program as run (study file format 1). */
+  definition: Program;
+  /** The whole rule in plain language. */
+  wording: string;
+  offerWording: string;
+  /** Deterministic (offer 1/0) or a lottery. */
+  offerKind: 'deterministic' | 'lottery';
+  criteria: Array<{ atom: number; path: string; description: string; linear: boolean; movesWithContinuous: boolean }>;
+}
+
+export interface Fidelity {
+  compared: number;
+  agree: number;
+  disagree: number;
+  /** IDs of units whose recorded decision differs from the formula (first 1,000). */
+  disagreeIds: string[];
+  /** Recorded as offered although the formula says not eligible (or offer probability 0). */
+  offeredAgainstRule: number;
+  /** Recorded as not offered although the formula says eligible (or offer probability 1). */
+  refusedAgainstRule: number;
+  /** How the comparison was made, in words. */
+  basis: string;
+}
+
+export interface DesignDelta {
+  delta: number;
+  boundary: number;
+  constant: number;
+  exact: number;
+  simulated: number;
+  maxSimulationSe: number;
+}
+
+export interface OutcomeResults {
+  column: string;
+  label: string;
+  missing: number;
+  byDelta: DeltaEstimate[];
+  naiveOls: ComparisonEstimate;
+  ivNoControl: ComparisonEstimate;
+  sensitivity: SensitivityResult;
+  localLinear: LocalLinearResult | null;
+}
+
+export interface Results {
+  fenceline: 1;
+  version: string;
+  study: StudyBlock;
+  program: ProgramBlock;
+  settings: {
+    deltas: number[]; draws: number; seed: number; smallCellMax: number;
+    drawsUsed: number; replicates: number; workers: number | null;
+    variance: 'HC1' | 'CR1'; clusterColumn: string | null;
+  };
+  scales: VariableScale[];
+  instrument: { source: 'formula' | 'recorded-decision'; note: string };
+  estimand: { kind: 'treatment' | 'offer'; note: string; treatmentPer: number };
+  fidelity: Fidelity | null;
+  design: { byDelta: DesignDelta[]; composition: DeltaComposition[]; mcSdBound: number };
+  outcomes: OutcomeResults[];
+  multipleOutcomes: HolmRow[];
+  balance: BalanceRow[];
+  balanceJoint: BalanceJoint[];
+  compliers: ComplierProfile[];
+  density: ProgramDensityCheck[];
+  thresholdChanges: ThresholdChangeResult | null;
+  localLinearNote: string | null;
+  warnings: Warning[];
+}

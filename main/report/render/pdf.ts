@@ -1,0 +1,457 @@
+// Document → PDF with pdfkit: embedded DejaVu fonts (subset by pdfkit), a title block, headings that
+// keep with what follows, the key-finding box, tables that split across pages and repeat their header
+// row, figures as PNGs, footnote marks with the notes collected at the end, and "Page X of Y" footers.
+// The creation date comes from the document, so the same document gives the same bytes.
+
+import { join } from 'node:path';
+import PDFDocument from 'pdfkit';
+import type { Block, BulletList, Document, Figure, Inline, Note, Paragraph, Section, Table, TextStyle } from '../model/document.ts';
+import {
+  NOTE_TONE_LABEL, assertRenderable, captionNumbers, cellText, footnoteNumbers, inlineText, numberedFootnotes,
+  superscriptDigits, tableLegend,
+} from '../model/format.ts';
+import { dejavuFontDir } from './chart-png.ts';
+import { figurePngs, pngSize } from './figures.ts';
+import type { RenderOptions } from './options.ts';
+
+export interface PdfOptions extends RenderOptions {
+  /** Paper size; US Letter when absent. */
+  pageSize?: 'LETTER' | 'A4';
+}
+
+type Pdf = InstanceType<typeof PDFDocument>;
+
+const FONTS = {
+  regular: 'DejaVuSans.ttf',
+  bold: 'DejaVuSans-Bold.ttf',
+  italic: 'DejaVuSans-Oblique.ttf',
+  boldItalic: 'DejaVuSans-BoldOblique.ttf',
+  cond: 'DejaVuSansCondensed.ttf',
+  condBold: 'DejaVuSansCondensed-Bold.ttf',
+  condItalic: 'DejaVuSansCondensed-Oblique.ttf',
+} as const;
+type FontKey = keyof typeof FONTS;
+
+const INK = '#1a1a1a';
+const MUTED = '#555555';
+const RULE = '#bfbfbf';
+const MARGIN = { top: 58, bottom: 62, left: 62, right: 62 };
+const BODY_SIZE = 10;
+const PARA_GAP = 6;
+
+function registerFonts(pdf: Pdf): void {
+  const dir = dejavuFontDir();
+  for (const [key, file] of Object.entries(FONTS)) pdf.registerFont(key, join(dir, file));
+}
+
+function fontFor(style: TextStyle | undefined, condensed = false): FontKey {
+  if (condensed) return style === 'bold' || style === 'boldItalic' ? 'condBold' : style === 'italic' ? 'condItalic' : 'cond';
+  switch (style) {
+    case 'bold': return 'bold';
+    case 'italic': return 'italic';
+    case 'boldItalic': return 'boldItalic';
+    default: return 'regular';
+  }
+}
+
+interface Layout {
+  pdf: Pdf;
+  /** A second document on a very tall page, used only to measure how tall text will be. */
+  scratch: Pdf;
+  doc: Document;
+  fn: Map<string, number>;
+  captions: Map<string, string>;
+  pngs: Map<string, Buffer>;
+  left: number;
+  width: number;
+}
+
+const bottom = (l: Layout) => l.pdf.page.height - MARGIN.bottom;
+const room = (l: Layout) => bottom(l) - l.pdf.y;
+const atTop = (l: Layout) => l.pdf.y <= MARGIN.top + 0.5;
+
+function newPage(l: Layout): void {
+  l.pdf.addPage();
+  l.pdf.x = l.left;
+  l.pdf.y = MARGIN.top;
+}
+
+function ensure(l: Layout, height: number): void {
+  if (room(l) < height && !atTop(l)) newPage(l);
+}
+
+function markText(l: Layout, id: string | undefined): string {
+  if (!id) return '';
+  const n = l.fn.get(id);
+  return n === undefined ? '' : superscriptDigits(n);
+}
+
+interface RunOpts { size: number; color?: string; align?: 'left' | 'right' | 'center'; condensed?: boolean; baseStyle?: TextStyle }
+
+/** Write inline runs at (x, y) within width on `target`; leaves target.y under the text. */
+function writeRuns(l: Layout, target: Pdf, runs: readonly Inline[], x: number, y: number, width: number, o: RunOpts): void {
+  const parts = runs
+    .map((r) => ({ text: inlineText(r, l.doc.suppression) + markText(l, r.footnote), style: r.style ?? o.baseStyle }))
+    .filter((p) => p.text.length > 0);
+  if (parts.length === 0) { target.y = y; return; }
+  target.fillColor(o.color ?? INK);
+  parts.forEach((p, i) => {
+    target.font(fontFor(p.style, o.condensed)).fontSize(o.size);
+    const opts = { width, align: o.align ?? 'left', continued: i < parts.length - 1, lineGap: 1.5 };
+    if (i === 0) target.text(p.text, x, y, opts); else target.text(p.text, opts);
+  });
+}
+
+function measureRuns(l: Layout, runs: readonly Inline[], width: number, o: RunOpts): number {
+  writeRuns(l, l.scratch, runs, 0, 0, width, o);
+  const h = l.scratch.y;
+  return h;
+}
+
+const plain = (text: string, style?: TextStyle): Inline => (style ? { kind: 'text', text, style } : { kind: 'text', text });
+
+function paragraph(l: Layout, p: Paragraph, x = l.left, width = l.width, size = BODY_SIZE): void {
+  ensure(l, size * 2.6);
+  writeRuns(l, l.pdf, p.runs, x, l.pdf.y, width, { size });
+  l.pdf.y += PARA_GAP;
+}
+
+function list(l: Layout, b: BulletList, x = l.left, width = l.width): void {
+  b.items.forEach((item, i) => {
+    ensure(l, BODY_SIZE * 2.6);
+    const y = l.pdf.y;
+    const marker = b.ordered ? `${i + 1}.` : '•';
+    l.pdf.font('regular').fontSize(BODY_SIZE).fillColor(INK).text(marker, x + 4, y, { width: 16, lineBreak: false });
+    writeRuns(l, l.pdf, item, x + 20, y, width - 20, { size: BODY_SIZE });
+    l.pdf.y += 2;
+  });
+  l.pdf.y += PARA_GAP - 2;
+}
+
+function heading(l: Layout, text: string, level: 1 | 2 | 3): void {
+  const size = level === 1 ? 15 : level === 2 ? 12.5 : 11;
+  // Keep the heading with at least a few lines of what follows it.
+  ensure(l, size * 2 + 60);
+  if (!atTop(l)) l.pdf.y += level === 1 ? 12 : 8;
+  l.pdf.font('bold').fontSize(size).fillColor(INK).text(text, l.left, l.pdf.y, { width: l.width });
+  if (level === 1) {
+    const y = l.pdf.y + 1;
+    l.pdf.moveTo(l.left, y).lineTo(l.left + l.width, y).lineWidth(0.6).strokeColor(RULE).stroke();
+    l.pdf.y = y + 5;
+  } else {
+    l.pdf.y += 3;
+  }
+}
+
+/** Content of a box (key finding, note), measured in the scratch document first. */
+type BoxContent = Array<{ kind: 'title'; text: string } | Paragraph | BulletList>;
+
+function boxHeight(l: Layout, content: BoxContent, width: number): number {
+  let h = 0;
+  for (const c of content) {
+    if (c.kind === 'title') h += measureRuns(l, [plain(c.text, 'bold')], width, { size: BODY_SIZE + 1 }) + 4;
+    else if (c.kind === 'paragraph') h += measureRuns(l, c.runs, width, { size: BODY_SIZE }) + PARA_GAP;
+    else for (const item of c.items) h += measureRuns(l, item, width - 20, { size: BODY_SIZE }) + 2;
+  }
+  return h;
+}
+
+function box(l: Layout, content: BoxContent, style: { fill: string; edge: string; leftBarOnly: boolean }): void {
+  const pad = 10;
+  const inner = l.width - 2 * pad - (style.leftBarOnly ? 4 : 0);
+  const h = boxHeight(l, content, inner) + 2 * pad - PARA_GAP / 2;
+  ensure(l, h + 8);
+  const x0 = l.left;
+  const y0 = l.pdf.y + 2;
+  if (h <= bottom(l) - y0) {
+    l.pdf.save();
+    l.pdf.rect(x0, y0, l.width, h).fill(style.fill);
+    if (style.leftBarOnly) l.pdf.rect(x0, y0, 4, h).fill(style.edge);
+    else l.pdf.rect(x0, y0, l.width, h).lineWidth(1.5).strokeColor(style.edge).stroke();
+    l.pdf.restore();
+  }
+  const x = x0 + pad + (style.leftBarOnly ? 4 : 0);
+  l.pdf.y = y0 + pad;
+  for (const c of content) {
+    if (c.kind === 'title') {
+      writeRuns(l, l.pdf, [plain(c.text, 'bold')], x, l.pdf.y, inner, { size: BODY_SIZE + 1 });
+      l.pdf.y += 4;
+    } else if (c.kind === 'paragraph') paragraph(l, c, x, inner);
+    else list(l, c, x, inner);
+  }
+  l.pdf.y = Math.max(l.pdf.y, y0 + h) + 10;
+}
+
+function note(l: Layout, n: Note): void {
+  const label = NOTE_TONE_LABEL[n.tone];
+  const title = n.title ? `${label}: ${n.title}` : label;
+  const style = n.tone === 'caution'
+    ? { fill: '#fff4e0', edge: '#b35c00', leftBarOnly: true }
+    : { fill: '#f2f2f2', edge: '#555555', leftBarOnly: true };
+  box(l, [{ kind: 'title', text: title }, ...n.body], style);
+}
+
+// ---------------------------------------------------------------------------------------------
+// Tables
+
+const CELL_PAD_X = 4;
+const CELL_PAD_Y = 3;
+const TABLE_SIZE = 8.5;
+const KEEP_LAST_ROWS = 3;
+
+function columnWidths(l: Layout, t: Table): number[] {
+  const pdf = l.scratch;
+  const natural = t.columns.map((col, i) => {
+    pdf.font('condBold').fontSize(TABLE_SIZE);
+    let w = pdf.widthOfString(col.header);
+    pdf.font('cond').fontSize(TABLE_SIZE);
+    for (const r of t.rows) {
+      const c = r.cells[i]!;
+      w = Math.max(w, pdf.widthOfString(cellText(c, col, l.doc.suppression) + ((c.kind === 'text' || c.kind === 'number') ? markText(l, c.footnote) : '')));
+    }
+    return Math.min(l.width * 0.6, Math.max(28, w + 2 * CELL_PAD_X + 1));
+  });
+  const weights = natural.map((n, i) => n * (t.columns[i]!.width ?? 1));
+  const sumNatural = natural.reduce((a, b) => a + b, 0);
+  if (sumNatural <= l.width) {
+    // Narrow tables stay narrow (numbers near their labels); the spare width goes by the columns'
+    // relative widths.
+    const target = Math.min(l.width, Math.max(l.width * 0.6, sumNatural * 1.5));
+    const spare = target - sumNatural;
+    const wsum = t.columns.reduce((a, c) => a + (c.width ?? 1), 0);
+    return natural.map((n, i) => n + spare * ((t.columns[i]!.width ?? 1) / wsum));
+  }
+  const wsum = weights.reduce((a, b) => a + b, 0);
+  return weights.map((w) => (w / wsum) * l.width);
+}
+
+function rowTexts(l: Layout, t: Table, r: number): string[] {
+  const row = t.rows[r]!;
+  return row.cells.map((c, i) => cellText(c, t.columns[i]!, l.doc.suppression) + ((c.kind === 'text' || c.kind === 'number') ? markText(l, c.footnote) : ''));
+}
+
+function rowHeight(l: Layout, texts: string[], widths: number[], bold: boolean): number {
+  const pdf = l.scratch;
+  pdf.font(bold ? 'condBold' : 'cond').fontSize(TABLE_SIZE);
+  let h = 0;
+  texts.forEach((s, i) => {
+    h = Math.max(h, pdf.heightOfString(s || ' ', { width: widths[i]! - 2 * CELL_PAD_X, lineGap: 1 }));
+  });
+  return h + 2 * CELL_PAD_Y;
+}
+
+function drawRow(l: Layout, t: Table, texts: string[], widths: number[], y: number, h: number, kind: 'header' | 'body' | 'total'): void {
+  const pdf = l.pdf;
+  const tw = widths.reduce((a, b) => a + b, 0);
+  if (kind === 'header') pdf.rect(l.left, y, tw, h).fill('#ececec');
+  let x = l.left;
+  pdf.font(kind === 'body' ? 'cond' : 'condBold').fontSize(TABLE_SIZE).fillColor(INK);
+  texts.forEach((s, i) => {
+    const w = widths[i]!;
+    pdf.text(s, x + CELL_PAD_X, y + CELL_PAD_Y, { width: w - 2 * CELL_PAD_X, align: t.columns[i]!.align, lineGap: 1 });
+    x += w;
+  });
+  const ruleY = y + h;
+  if (kind === 'header') {
+    pdf.moveTo(l.left, ruleY).lineTo(l.left + tw, ruleY).lineWidth(1).strokeColor(INK).stroke();
+  } else {
+    if (kind === 'total') pdf.moveTo(l.left, y).lineTo(l.left + tw, y).lineWidth(0.9).strokeColor(INK).stroke();
+    pdf.moveTo(l.left, ruleY).lineTo(l.left + tw, ruleY).lineWidth(0.3).strokeColor('#d6d6d6').stroke();
+  }
+}
+
+function table(l: Layout, t: Table): void {
+  const widths = columnWidths(l, t);
+  const label = l.captions.get(t.id) ?? 'Table';
+  const headers = t.columns.map((c) => c.header);
+  const headerH = rowHeight(l, headers, widths, true);
+  const captionRuns = [plain(`${label}. `, 'bold'), plain(t.caption)];
+  const captionH = measureRuns(l, captionRuns, l.width, { size: BODY_SIZE - 0.5 });
+  const heights = t.rows.map((row, r) => rowHeight(l, rowTexts(l, t, r), widths, row.emphasis === 'total'));
+  const bodyH = heights.reduce((a, b) => a + b, 0);
+  const whole = captionH + 5 + headerH + bodyH;
+  const pageH = l.pdf.page.height - MARGIN.top - MARGIN.bottom;
+  // A table that fits on one page is kept whole; a longer one starts where it is, with room for
+  // its caption, header and first row.
+  ensure(l, whole <= pageH ? whole : captionH + 5 + headerH + (heights[0] ?? 0));
+  l.pdf.y += 2;
+  writeRuns(l, l.pdf, captionRuns, l.left, l.pdf.y, l.width, { size: BODY_SIZE - 0.5 });
+  l.pdf.y += 3;
+  let y = l.pdf.y;
+  drawRow(l, t, headers, widths, y, headerH, 'header');
+  y += headerH;
+  t.rows.forEach((row, r) => {
+    const texts = rowTexts(l, t, r);
+    const total = row.emphasis === 'total';
+    const h = heights[r]!;
+    // Widow control: the last rows (the total among them) move together rather than alone.
+    const tail = t.rows.length - r <= KEEP_LAST_ROWS ? heights.slice(r).reduce((a, b) => a + b, 0) : h;
+    const tailFits = tail <= bottom(l) - MARGIN.top - headerH - 20;
+    if (y + (tailFits ? tail : h) > bottom(l)) {
+      newPage(l);
+      // Continued tables repeat their caption label and header row.
+      writeRuns(l, l.pdf, [plain(`${label} (continued). `, 'bold'), plain(t.caption, 'italic')], l.left, l.pdf.y, l.width, { size: BODY_SIZE - 1.5, color: MUTED });
+      l.pdf.y += 3;
+      y = l.pdf.y;
+      drawRow(l, t, headers, widths, y, headerH, 'header');
+      y += headerH;
+    }
+    drawRow(l, t, texts, widths, y, h, total ? 'total' : 'body');
+    y += h;
+  });
+  l.pdf.y = y + 4;
+  const notes: Inline[][] = [...(t.notes ?? []), ...tableLegend(t, l.doc.suppression).map((s) => [plain(s)])];
+  for (const n of notes) {
+    ensure(l, 14);
+    writeRuns(l, l.pdf, n, l.left, l.pdf.y, l.width, { size: BODY_SIZE - 1.5, color: MUTED });
+    l.pdf.y += 1.5;
+  }
+  l.pdf.y += PARA_GAP + 4;
+}
+
+function figure(l: Layout, f: Figure): void {
+  const png = l.pngs.get(f.id);
+  const label = l.captions.get(f.id) ?? 'Figure';
+  const captionRuns = [plain(`${label}. `, 'bold'), plain(f.caption)];
+  const captionH = measureRuns(l, captionRuns, l.width, { size: BODY_SIZE - 0.5 });
+  if (!png) return;
+  const { width: pw, height: ph } = pngSize(png);
+  let w = l.width;
+  let h = (w * ph) / pw;
+  const maxH = l.pdf.page.height - MARGIN.top - MARGIN.bottom - captionH - 12;
+  if (h > maxH) { h = maxH; w = (h * pw) / ph; }
+  ensure(l, h + captionH + 12);
+  const y = l.pdf.y + 4;
+  l.pdf.image(png, l.left + (l.width - w) / 2, y, { width: w, height: h });
+  l.pdf.y = y + h + 4;
+  writeRuns(l, l.pdf, captionRuns, l.left, l.pdf.y, l.width, { size: BODY_SIZE - 0.5 });
+  l.pdf.y += PARA_GAP + 6;
+}
+
+function glossary(l: Layout, entries: Array<{ term: string; definition: Inline[] }>): void {
+  for (const e of entries) {
+    ensure(l, BODY_SIZE * 4);
+    l.pdf.font('bold').fontSize(BODY_SIZE).fillColor(INK).text(e.term, l.left, l.pdf.y, { width: l.width });
+    l.pdf.y += 1;
+    writeRuns(l, l.pdf, e.definition, l.left + 16, l.pdf.y, l.width - 16, { size: BODY_SIZE });
+    l.pdf.y += PARA_GAP;
+  }
+}
+
+function block(l: Layout, b: Block): void {
+  switch (b.kind) {
+    case 'paragraph': paragraph(l, b); break;
+    case 'list': list(l, b); break;
+    case 'keyFinding':
+      box(l, [{ kind: 'title', text: b.title }, ...b.body], { fill: '#eaf3fb', edge: '#0072b2', leftBarOnly: false });
+      break;
+    case 'note': note(l, b); break;
+    case 'glossary': glossary(l, b.entries); break;
+    case 'table': table(l, b); break;
+    case 'figure': figure(l, b); break;
+    case 'pageBreak': if (!atTop(l)) newPage(l); break;
+  }
+}
+
+function section(l: Layout, s: Section, level: 1 | 2 | 3): void {
+  if (s.pageBreakBefore && !atTop(l)) newPage(l);
+  heading(l, s.heading, level);
+  for (const b of s.blocks) block(l, b);
+  for (const c of s.sections ?? []) section(l, c, Math.min(3, level + 1) as 1 | 2 | 3);
+}
+
+function titleBlock(l: Layout): void {
+  const tb = l.doc.title;
+  const pdf = l.pdf;
+  pdf.font('bold').fontSize(20).fillColor(INK).text(tb.title, l.left, MARGIN.top, { width: l.width, lineGap: 2 });
+  pdf.y += 4;
+  if (tb.subtitle) {
+    pdf.font('regular').fontSize(12).fillColor(MUTED).text(tb.subtitle, l.left, pdf.y, { width: l.width });
+    pdf.y += 6;
+  }
+  pdf.font('bold').fontSize(10).fillColor(INK).text(tb.dateLine, l.left, pdf.y, { width: l.width });
+  pdf.y += 4;
+  for (const line of tb.provenance) {
+    pdf.font('cond').fontSize(8).fillColor(MUTED).text(line, l.left, pdf.y, { width: l.width });
+  }
+  const y = pdf.y + 6;
+  pdf.moveTo(l.left, y).lineTo(l.left + l.width, y).lineWidth(1.5).strokeColor(INK).stroke();
+  pdf.y = y + 14;
+}
+
+function endNotes(l: Layout): void {
+  const notes = numberedFootnotes(l.doc);
+  if (!notes.length) return;
+  heading(l, 'Notes', 1);
+  for (const n of notes) {
+    ensure(l, 24);
+    const y = l.pdf.y;
+    l.pdf.font('regular').fontSize(BODY_SIZE - 1).fillColor(INK).text(`${n.number}.`, l.left, y, { width: 18, lineBreak: false });
+    writeRuns(l, l.pdf, n.body, l.left + 20, y, l.width - 20, { size: BODY_SIZE - 1 });
+    l.pdf.y += 3;
+  }
+}
+
+function footers(l: Layout): void {
+  const pdf = l.pdf;
+  const range = pdf.bufferedPageRange();
+  const title = l.doc.title.title;
+  for (let i = range.start; i < range.start + range.count; i++) {
+    pdf.switchToPage(i);
+    // Writing inside the bottom margin must not start a new page.
+    const saved = pdf.page.margins.bottom;
+    pdf.page.margins.bottom = 0;
+    const y = pdf.page.height - MARGIN.bottom + 24;
+    pdf.moveTo(l.left, y - 6).lineTo(l.left + l.width, y - 6).lineWidth(0.4).strokeColor(RULE).stroke();
+    pdf.font('cond').fontSize(8).fillColor(MUTED);
+    pdf.text(title, l.left, y, { width: l.width * 0.7, lineBreak: false, ellipsis: true, height: 10 });
+    pdf.text(`Page ${i - range.start + 1} of ${range.count}`, l.left, y, { width: l.width, align: 'right', lineBreak: false });
+    pdf.page.margins.bottom = saved;
+  }
+}
+
+export async function renderPdf(doc: Document, opts: PdfOptions = {}): Promise<Buffer> {
+  assertRenderable(doc);
+  const created = new Date(doc.title.createdAt);
+  if (Number.isNaN(created.getTime())) throw new Error(`The memo's creation date "${doc.title.createdAt}" is not an ISO date.`);
+  const pngs = await figurePngs(doc, opts);
+  const size = opts.pageSize ?? 'LETTER';
+  const pdf = new PDFDocument({
+    size,
+    margins: MARGIN,
+    bufferPages: true,
+    autoFirstPage: true,
+    lang: doc.title.language ?? 'en',
+    displayTitle: true,
+    info: {
+      Title: doc.title.title,
+      Author: doc.title.author ?? 'Fenceline',
+      Subject: doc.title.subtitle ?? '',
+      Creator: 'Fenceline',
+      Producer: 'Fenceline (pdfkit)',
+      CreationDate: created,
+      ModDate: created,
+    },
+  });
+  const scratch = new PDFDocument({ size: [612, 100000], margins: { top: 0, bottom: 0, left: 0, right: 0 }, info: { CreationDate: created } });
+  registerFonts(pdf);
+  registerFonts(scratch);
+  const chunks: Buffer[] = [];
+  pdf.on('data', (c: Buffer) => chunks.push(c));
+  const done = new Promise<Buffer>((resolve, reject) => {
+    pdf.on('end', () => resolve(Buffer.concat(chunks)));
+    pdf.on('error', reject);
+  });
+  const l: Layout = {
+    pdf, scratch, doc,
+    fn: footnoteNumbers(doc), captions: captionNumbers(doc), pngs,
+    left: MARGIN.left, width: pdf.page.width - MARGIN.left - MARGIN.right,
+  };
+  titleBlock(l);
+  for (const s of doc.sections) section(l, s, 1);
+  endNotes(l);
+  footers(l);
+  pdf.end();
+  scratch.end();
+  return done;
+}

@@ -1,0 +1,274 @@
+// The pipeline for one study: read → validate → map → compute APS → estimate → checks → results.
+// Each stage is a plain function of its inputs (plus the seed); only reading the data touches
+// the file system. Same study, data and seed → the same results, byte for byte.
+
+import { isAbsolute, resolve } from 'node:path';
+import type { Study } from './contract/study.ts';
+import type { ExclusionReason, Results, Warning } from './contract/results.ts';
+import { readJoins } from './data/join.ts';
+import { mapStudyColumns, type ColumnSpec, type MappedData } from './data/map-columns.ts';
+import { readTable } from './data/read-table.ts';
+import type { RawTable } from './data/types.ts';
+import { computePropensityParallel } from './design/parallel/pool.ts';
+import type { PropensityResult, Progress } from './design/propensity.ts';
+import { resolutionWarnings } from './design/resolution.ts';
+import { estimateApsIv, type ApsIvResult } from './estimate/aps-iv.ts';
+import { balanceChecks } from './estimate/balance.ts';
+import { complierProfiles } from './estimate/compliers.ts';
+import { boundaryComposition, describeAtom } from './estimate/composition.ts';
+import { densityChecksForProgram } from './estimate/density.ts';
+import { localLinear, singleCutoff } from './estimate/local-linear.ts';
+import { holmByDelta } from './estimate/multiplicity.ts';
+import { deltaSensitivity } from './estimate/sensitivity.ts';
+import { thresholdChanges } from './estimate/threshold-change.ts';
+import type { NamedColumn } from './estimate/types.ts';
+import { prepareUnits, type PreparedUnits } from './pipeline/prepare-units.ts';
+import { lowerValidatedProgram } from './rules/compile.ts';
+import type { CompiledProgram } from './rules/ir.ts';
+import type { Checked, Problem } from './rules/types.ts';
+import { describeCondition, describeOffer, describeProgram } from './rules/wording.ts';
+import { SOFTWARE_VERSION } from './store/software-version.ts';
+
+export interface RunOptions {
+  /** Folder that relative data paths are resolved against (the study file's folder). */
+  baseDir: string;
+  onProgress?: (p: Progress) => void;
+  signal?: AbortSignal;
+  /** Worker threads for the propensity stage (default: available cores; 0 = this thread). */
+  workers?: number;
+}
+
+/** What a run produces besides results.json: per-unit columns for units.csv and the memo's figures. */
+export interface StudyRun {
+  results: Results;
+  units: {
+    ids: string[];
+    z: Float64Array;
+    d: Float64Array | null;
+    aps: Float64Array[];
+  };
+  program: CompiledProgram;
+  prepared: PreparedUnits;
+  propensity: PropensityResult;
+  /** The unit file as read (for the workspace). */
+  table: RawTable;
+  timings: Record<string, number>;
+}
+
+/** The study's column roles in the shape the data layer maps. */
+export function columnSpec(study: Study): ColumnSpec {
+  const c = study.columns;
+  return {
+    id: c.id,
+    variables: study.program.variables.map((v, i) => ({ key: v.key, column: v.column, type: v.type, path: `program.variables[${i}].column` })),
+    outcomes: c.outcomes.map((o, i) => ({ column: o.column, ...(o.label ? { label: o.label } : {}), path: `columns.outcomes[${i}].column` })),
+    ...(c.treatment === undefined
+      ? {}
+      : { treatment: typeof c.treatment === 'string' ? { column: c.treatment, path: 'columns.treatment' } : { listedIn: c.treatment.listedIn, path: 'columns.treatment.listedIn' } }),
+    ...(c.decision ? { decision: { column: c.decision, path: 'columns.decision' } } : {}),
+    ...(c.cluster ? { cluster: { column: c.cluster, path: 'columns.cluster' } } : {}),
+    covariates: (c.covariates ?? []).map((column, i) => ({ column, path: `columns.covariates[${i}]` })),
+    controls: (c.controls ?? []).map((column, i) => ({ column, path: `columns.controls[${i}]` })),
+  };
+}
+
+export interface ReadStudyData {
+  table: RawTable;
+  joinHashes: Map<string, string>;
+  mapped: MappedData;
+}
+
+/** Read the unit file and every joined source, and map the study's columns. */
+export async function readStudyData(study: Study, options: Pick<RunOptions, 'baseDir' | 'onProgress' | 'signal'>): Promise<Checked<ReadStudyData>> {
+  const at = (p: string) => (isAbsolute(p) ? p : resolve(options.baseDir, p));
+  const progress = options.onProgress ? (p: { done: number; total: number }) => options.onProgress!({ stage: 'import', done: p.done, total: p.total }) : undefined;
+  const table = await readTable(at(study.data.path), {
+    ...(study.data.sheet ? { sheet: study.data.sheet } : {}),
+    ...(study.data.headerRow ? { headerRow: study.data.headerRow } : {}),
+    ...(options.signal ? { signal: options.signal } : {}),
+    ...(progress ? { onProgress: progress } : {}),
+  });
+  if (!table.ok) return table;
+  const joins = await readJoins(study.data.join ?? [], options.baseDir, {
+    ...(options.signal ? { signal: options.signal } : {}),
+    ...(progress ? { onProgress: progress } : {}),
+  });
+  if (!joins.ok) return joins;
+  const mapped = mapStudyColumns(table.value, columnSpec(study), joins.value);
+  if (!mapped.ok) return mapped;
+  const joinHashes = new Map(joins.value.map((j) => [j.source, j.table.source.sha256]));
+  return { ok: true, value: { table: table.value, joinHashes, mapped: mapped.value } };
+}
+
+const input = (path: string, message: string): Checked<never> => ({ ok: false, problems: [{ path, message }] });
+
+/** Run a validated study end to end. Input problems come back as values; faults throw. */
+export async function runStudy(study: Study, options: RunOptions): Promise<Checked<StudyRun>> {
+  const timings: Record<string, number> = {};
+  const clock = () => performance.now();
+  let t = clock();
+  const lap = (name: string) => { const now = clock(); timings[name] = Math.round(now - t); t = now; };
+
+  const read = await readStudyData(study, options);
+  if (!read.ok) return read;
+  lap('read');
+  const { table, mapped } = read.value;
+  if (mapped.n === 0) {
+    return input(study.data.path, `No row of ${table.source.fileName} could be used (${mapped.rowsRead} read): ${mapped.excluded.map((e) => `${e.count} ${e.reason}`).join('; ')}. Fix the data or the column names in the study.`);
+  }
+
+  const program = lowerValidatedProgram(study.program);
+  const describe = (atom: number) => describeAtom(program, atom);
+  const prepared = prepareUnits(program, mapped, study.program.variables.map((v) => v.key), describe);
+  const { data, cols, z } = prepared;
+  if (data.n === 0) return input('program.rule', 'The rule cannot be evaluated for any unit: check the lookup tables (a limit for every value) and divisions.');
+  lap('prepare');
+
+  const settings = { deltas: study.settings.deltas, draws: study.settings.draws, seed: study.settings.seed };
+  const propensity = await computePropensityParallel(program, cols, settings, {
+    ...(options.workers !== undefined ? { workers: options.workers } : {}),
+    ...(options.onProgress ? { onProgress: options.onProgress } : {}),
+    ...(options.signal ? { signal: options.signal } : {}),
+  });
+  if (!propensity.ok) return propensity;
+  const ps = propensity.value;
+  lap('propensity');
+
+  options.onProgress?.({ stage: 'estimate', done: 0, total: 1 });
+  const warnings: Warning[] = [];
+  const clusters = data.cluster ? data.cluster.codes : undefined;
+  const offer: NamedColumn = { name: study.columns.decision && prepared.instrument.source === 'recorded-decision' ? study.columns.decision : 'offer (formula)', values: z };
+  const treatmentName = typeof study.columns.treatment === 'string' ? study.columns.treatment : study.columns.treatment ? `listed in ${study.columns.treatment.listedIn}` : null;
+  const treatment: NamedColumn | undefined = data.treatment && treatmentName ? { name: treatmentName, values: data.treatment } : undefined;
+  const controls: NamedColumn[] = (study.columns.controls ?? []).map((name, i) => ({ name, values: data.controls[i]! }));
+  const covariates: NamedColumn[] = (study.columns.covariates ?? []).map((name, i) => ({ name, values: data.covariates[i]! }));
+  const propCols = { deltas: ps.deltas, aps: ps.aps };
+
+  const estimates: ApsIvResult = estimateApsIv({
+    outcomes: study.columns.outcomes.map((o, i) => ({ column: o.column, ...(o.label ? { label: o.label } : {}), values: data.outcomes[i]! })),
+    offer,
+    ...(treatment ? { treatment } : {}),
+    ...(study.columns.treatmentPer ? { treatmentPer: study.columns.treatmentPer } : {}),
+    propensity: propCols,
+    controls,
+    ...(clusters ? { clusters } : {}),
+  });
+  warnings.push(...estimates.warnings);
+  lap('estimate');
+
+  options.onProgress?.({ stage: 'checks', done: 0, total: 1 });
+  const balance = covariates.length ? balanceChecks({ covariates, offer, propensity: propCols, ...(clusters ? { clusters } : {}) }) : { rows: [], joint: [], warnings: [] };
+  warnings.push(...balance.warnings);
+  const zBinary = Array.prototype.every.call(z, (v: number) => v === 0 || v === 1);
+  const dBinary = !data.treatment || Array.prototype.every.call(data.treatment, (v: number) => v === 0 || v === 1);
+  const compliers = covariates.length && zBinary && dBinary
+    ? complierProfiles({ covariates, offer: z, ...(data.treatment ? { treatment: data.treatment } : {}), propensity: propCols })
+    : [];
+  for (const c of compliers) warnings.push(...c.warnings);
+  const composition = boundaryComposition(program, { deltas: ps.deltas, aps: ps.aps, straddle: ps.straddle });
+  warnings.push(...composition.warnings);
+  warnings.push(...resolutionWarnings(program, cols, ps.scales, ps.deltas).map(({ code, message }) => ({ code, message })));
+  const density = densityChecksForProgram(program, cols);
+  for (const d of density) warnings.push(...d.warnings.map((w) => ({ ...w, message: `${d.description}: ${w.message}` })));
+
+  const cutoff = singleCutoff(program);
+  const outcomes = estimates.outcomes.map((o, i) => {
+    const sensitivity = deltaSensitivity(o.column, o.byDelta);
+    warnings.push(...sensitivity.warnings);
+    let local = null;
+    if (cutoff.applicable) {
+      local = localLinear({
+        running: cols.continuous[cutoff.variable]!,
+        cutoff: cutoff.cutoff,
+        outcome: data.outcomes[i]!,
+        offer: z,
+        ...(data.treatment ? { treatment: data.treatment } : {}),
+        ...(clusters ? { clusters } : {}),
+      });
+      warnings.push(...local.warnings);
+    }
+    return { column: o.column, label: o.label, missing: o.missing, byDelta: o.byDelta, naiveOls: o.naiveOls, ivNoControl: o.ivNoControl, sensitivity, localLinear: local };
+  });
+  const middle = Math.floor(ps.deltas.length / 2);
+  const thresholds = thresholdChanges({
+    program,
+    columns: cols,
+    delta: ps.deltas[middle]!,
+    aps: ps.aps[middle]!,
+    estimates: estimates.outcomes.map((o) => {
+      const at = o.byDelta[middle]!;
+      return { column: o.column, firstStage: at.firstStage ? { coef: at.firstStage.coef, se: at.firstStage.se } : null, takeUpIsOffer: !treatment, reducedForm: at.reducedForm };
+    }),
+  });
+  warnings.push(...thresholds.warnings);
+  lap('checks');
+
+  const rowsExcluded: ExclusionReason[] = [...mapped.excluded, ...prepared.excludedByRule];
+  const results: Results = {
+    fenceline: 1,
+    version: SOFTWARE_VERSION,
+    study: {
+      title: study.title,
+      dataFile: table.source.fileName,
+      sheet: table.source.sheet,
+      dataSha256: table.source.sha256,
+      rowsRead: mapped.rowsRead,
+      rowsUsed: data.n,
+      rowsExcluded,
+      joins: mapped.joins.map((j) => ({ ...j, sha256: read.value.joinHashes.get(j.source) ?? '' })),
+      notes: mapped.notes,
+    },
+    program: {
+      name: study.program.name,
+      unit: study.program.unit ?? 'unit',
+      definition: study.program,
+      wording: describeProgram(study.program),
+      offerWording: describeOffer(study.program.offer, study.program.unit ?? 'unit'),
+      offerKind: prepared.instrument.source === 'formula' ? 'deterministic' : 'lottery',
+      criteria: program.atoms.map((a) => ({ atom: a.index, path: a.path, description: describeCondition(a.condition, study.program), linear: a.linear, movesWithContinuous: a.dependsOnContinuous })),
+    },
+    settings: {
+      deltas: ps.deltas.slice(), draws: settings.draws, seed: settings.seed, smallCellMax: study.settings.smallCellMax,
+      drawsUsed: ps.drawsUsed, replicates: ps.replicates, workers: null,
+      variance: clusters ? 'CR1' : 'HC1', clusterColumn: study.columns.cluster ?? null,
+    },
+    scales: ps.scales,
+    instrument: prepared.instrument,
+    estimand: { kind: estimates.estimand, note: estimates.estimandNote, treatmentPer: estimates.treatmentPer },
+    fidelity: prepared.fidelity,
+    design: {
+      byDelta: ps.summary.map((s) => ({ delta: s.delta, boundary: s.boundary, constant: s.constant, exact: s.exact, simulated: s.simulated, maxSimulationSe: s.maxSe })),
+      composition: composition.byDelta,
+      mcSdBound: ps.mcSdBound,
+    },
+    outcomes,
+    multipleOutcomes: outcomes.length > 1 ? holmByDelta(outcomes) : [],
+    balance: balance.rows,
+    balanceJoint: balance.joint,
+    compliers,
+    density,
+    thresholdChanges: thresholds,
+    localLinearNote: cutoff.applicable ? null : `The local-linear cross-check applies to one running variable with one deterministic cut-off; here ${cutoff.reason}.`,
+    warnings: dedupe(warnings),
+  };
+  options.onProgress?.({ stage: 'checks', done: 1, total: 1 });
+  return {
+    ok: true,
+    value: {
+      results,
+      units: { ids: data.ids, z, d: data.treatment, aps: ps.aps },
+      program,
+      prepared,
+      propensity: ps,
+      table,
+      timings,
+    },
+  };
+}
+
+function dedupe(ws: Warning[]): Warning[] {
+  const seen = new Set<string>();
+  return ws.filter((w) => { const k = `${w.code}\u0000${w.message}`; if (seen.has(k)) return false; seen.add(k); return true; });
+}
+
+export type { Problem };
