@@ -1,166 +1,37 @@
-// The one API surface: the CLI, browser mode and Electron's IPC all call these functions.
-// They adapt files and the workspace to the pure pipeline (study.ts) and never hold analysis logic.
+// The one API surface. The CLI calls these functions in-process; browser mode (serve.ts) and
+// Electron's IPC (electron/) call `callApi`, which refuses methods outside the contract and
+// arguments of the wrong shape before any work is done. No analysis logic lives here.
 
-import { resolve } from 'node:path';
-import { fileURLToPath } from 'node:url';
-import type {
-  ApiResult, CheckArgs, CheckReport, DemoArgs, EvaluateArgs, EvaluateReport, OutputFormat, ProgressEvent,
-} from './contract/api.ts';
-import type { Study } from './contract/study.ts';
-import type { RawTable } from './data/types.ts';
-import { Cancelled, validateSettings } from './design/propensity.ts';
-import { unitsCsv } from './output/units-csv.ts';
-import { writeFilesAtomically, type OutputFile } from './output/write-files.ts';
-import { prepareUnits } from './pipeline/prepare-units.ts';
-import { describeAtom } from './estimate/composition.ts';
-import { lowerValidatedProgram } from './rules/compile.ts';
-import type { Problem } from './rules/types.ts';
-import { describeProgram } from './rules/wording.ts';
-import { openWorkspace } from './store/workspace.ts';
-import type { DatasetColumnInput } from './store/types.ts';
-import { SOFTWARE_VERSION } from './store/software-version.ts';
-import { readStudyData, runStudy, type StudyRun } from './study.ts';
-import { loadStudyFile } from './studyfile/load.ts';
-import { IMPORT_CANCELLED } from './data/read-table.ts';
+import { API_METHODS, OUTPUT_FORMATS, type ApiMethod, type ApiMethods, type ApiResult } from './contract/api.ts';
+import { checkShape, type Shape } from './api/args.ts';
+import { refuse, type CallContext } from './api/context.ts';
+import { checkStudy, evaluateStudy, runDemo } from './api/evaluate.ts';
 
-/** How a caller follows and stops long work (not part of the wire contract: each transport adapts it). */
-export interface CallContext {
-  onProgress?: (p: ProgressEvent) => void;
-  signal?: AbortSignal;
-}
+export { checkStudy, evaluateStudy, runDemo, type CallContext };
 
-const refuse = (problems: Problem[]): ApiResult<never> => {
-  const cancelled = problems.some((p) => p.message === IMPORT_CANCELLED);
-  return { ok: false, error: { kind: cancelled ? 'cancelled' : 'input', problems } };
+type Handler<M extends ApiMethod> = (args: ApiMethods[M]['args'], ctx: CallContext) => Promise<ApiResult<ApiMethods[M]['result']>>;
+
+const formats: Shape = { list: { oneOf: OUTPUT_FORMATS }, max: OUTPUT_FORMATS.length };
+const overrides: Shape = { object: { deltas: { list: 'number', max: 50 }, draws: 'integer', seed: 'integer' }, optional: ['deltas', 'draws', 'seed'] };
+
+const METHODS: { [M in ApiMethod]: { args: Shape; run: Handler<M> } } = {
+  'study.check': { args: { object: { studyPath: 'string' } }, run: checkStudy },
+  'study.evaluate': {
+    args: { object: { studyPath: 'string', outDir: 'string', overrides, formats, workspacePath: 'string', workers: 'integer' }, optional: ['overrides', 'formats', 'workspacePath', 'workers'] },
+    run: evaluateStudy,
+  },
+  'demo.run': { args: { object: { outDir: 'string', formats, workers: 'integer' }, optional: ['formats', 'workers'] }, run: runDemo },
 };
 
-/** The memo formats this version can write (the memo arrives with the report module). */
-export const AVAILABLE_MEMO_FORMATS: readonly OutputFormat[] = [];
-
-export async function checkStudy(args: CheckArgs, ctx: CallContext = {}): Promise<ApiResult<CheckReport>> {
-  const loaded = loadStudyFile(args.studyPath);
-  if (!loaded.ok) return refuse(loaded.problems);
-  const { study, baseDir } = loaded.value;
-  const read = await readStudyData(study, { baseDir, ...ctx });
-  if (!read.ok) return refuse(read.problems);
-  const { mapped, table } = read.value;
-  const program = lowerValidatedProgram(study.program);
-  const prepared = prepareUnits(program, mapped, study.program.variables.map((v) => v.key), (a) => describeAtom(program, a));
-  return {
-    ok: true,
-    value: {
-      title: study.title,
-      dataFile: table.source.fileName,
-      sheet: table.source.sheet,
-      rowsRead: mapped.rowsRead,
-      rowsUsed: prepared.data.n,
-      rowsExcluded: [...mapped.excluded, ...prepared.excludedByRule],
-      outcomesMissing: study.columns.outcomes.map((o, i) => ({ column: o.column, count: prepared.data.outcomeMissing[i]?.count ?? 0 })),
-      fidelity: prepared.fidelity,
-      eligible: prepared.eligible.reduce((a, b) => a + b, 0),
-      notes: mapped.notes,
-      ruleWording: describeProgram(study.program),
-    },
-  };
+export function isApiMethod(name: unknown): name is ApiMethod {
+  return typeof name === 'string' && (API_METHODS as readonly string[]).includes(name);
 }
 
-function withOverrides(study: Study, args: EvaluateArgs): ApiResult<Study> {
-  const o = args.overrides ?? {};
-  const settings = { ...study.settings, ...(o.deltas ? { deltas: o.deltas } : {}), ...(o.draws !== undefined ? { draws: o.draws } : {}), ...(o.seed !== undefined ? { seed: o.seed } : {}) };
-  const checked = validateSettings(settings, 'settings');
-  if (!checked.ok) return refuse(checked.problems.map((p) => ({ path: p.path.replace(/^settings\.(deltas|draws|seed).*/, '--$1'), message: p.message })));
-  return { ok: true, value: { ...study, settings } };
-}
-
-function datasetColumns(table: RawTable): DatasetColumnInput[] {
-  return table.columns.map((c) =>
-    c.texts
-      ? { name: c.name, kind: 'text' as const, values: Array.from({ length: table.rowCount }, (_, r) => c.texts![r] ?? (Number.isNaN(c.numbers[r]!) ? '' : String(c.numbers[r]))) }
-      : { name: c.name, kind: 'f64' as const, values: c.numbers },
-  );
-}
-
-/** Save the study version, the dataset (once per file hash) and the run in the workspace. */
-function recordInWorkspace(path: string, study: Study, run: StudyRun, startedAt: string): ApiResult<number> {
-  const opened = openWorkspace(path);
-  if (!opened.ok) return refuse(opened.problems);
-  const ws = opened.value;
-  try {
-    const existing = ws.listStudies();
-    if (!existing.ok) return refuse(existing.problems);
-    const prior = existing.value.find((s) => s.name === study.title);
-    const saved = ws.saveStudy({ ...(prior ? { studyId: prior.studyId } : {}), name: study.title, study });
-    if (!saved.ok) return refuse(saved.problems);
-    const datasets = ws.listDatasets();
-    if (!datasets.ok) return refuse(datasets.problems);
-    if (!datasets.value.some((d) => d.sha256 === run.table.source.sha256 && d.sheet === run.table.source.sheet)) {
-      const imported = ws.importDataset({
-        sourceName: run.table.source.fileName,
-        sheet: run.table.source.sheet,
-        sha256: run.table.source.sha256,
-        importedAt: startedAt,
-        rowNumbers: run.table.rowNumbers,
-        columns: datasetColumns(run.table),
-        notes: { headerRow: run.table.headerRow, notes: run.table.notes },
-      });
-      if (!imported.ok) return refuse(imported.problems);
-    }
-    const recorded = ws.recordRun({
-      studyId: saved.value.studyId,
-      studyVersion: saved.value.version,
-      studyJson: study,
-      settings: study.settings,
-      seed: study.settings.seed,
-      softwareVersion: SOFTWARE_VERSION,
-      dataSha256: run.results.study.dataSha256,
-      results: run.results,
-      timings: run.timings,
-      startedAt,
-      finishedAt: new Date().toISOString(),
-    });
-    if (!recorded.ok) return refuse(recorded.problems);
-    return { ok: true, value: recorded.value };
-  } finally {
-    ws.close();
-  }
-}
-
-export async function evaluateStudy(args: EvaluateArgs, ctx: CallContext = {}): Promise<ApiResult<EvaluateReport>> {
-  const startedAt = new Date().toISOString();
-  const formats = args.formats ?? [];
-  const unavailable = formats.filter((f) => !AVAILABLE_MEMO_FORMATS.includes(f));
-  if (unavailable.length) {
-    return refuse([{ path: '--formats', message: `This version cannot write ${unavailable.join(', ')} memos yet; use --formats none for results.json and units.csv.` }]);
-  }
-  const loaded = loadStudyFile(args.studyPath);
-  if (!loaded.ok) return refuse(loaded.problems);
-  const study = withOverrides(loaded.value.study, args);
-  if (!study.ok) return study;
-  let run;
-  try {
-    run = await runStudy(study.value, { baseDir: loaded.value.baseDir, ...ctx, ...(args.workers !== undefined ? { workers: args.workers } : {}) });
-  } catch (e) {
-    if (e instanceof Cancelled) return { ok: false, error: { kind: 'cancelled', problems: [{ path: '', message: e.message }] } };
-    throw e;
-  }
-  if (!run.ok) return refuse(run.problems);
-  const r = run.value;
-  const files: OutputFile[] = [
-    { name: 'results.json', content: JSON.stringify(r.results, null, 2) + '\n' },
-    { name: 'units.csv', content: unitsCsv({ ids: r.units.ids, z: r.units.z, d: r.units.d, deltas: r.results.settings.deltas, aps: r.units.aps }) },
-  ];
-  const written = writeFilesAtomically(resolve(args.outDir), files);
-  let runId: number | null = null;
-  if (args.workspacePath) {
-    const recorded = recordInWorkspace(resolve(args.workspacePath), study.value, r, startedAt);
-    if (!recorded.ok) return recorded;
-    runId = recorded.value;
-  }
-  return { ok: true, value: { outDir: resolve(args.outDir), files: written, results: r.results, runId, timings: r.timings } };
-}
-
-/** The bundled sample study end to end. */
-export async function runDemo(args: DemoArgs, ctx: CallContext = {}): Promise<ApiResult<EvaluateReport>> {
-  const studyPath = fileURLToPath(new URL('../sample-programs/winter-credit/study.json', import.meta.url));
-  return evaluateStudy({ studyPath, outDir: args.outDir, ...(args.formats ? { formats: args.formats } : {}), ...(args.workers !== undefined ? { workers: args.workers } : {}) }, ctx);
+/** Call a method by name with untrusted arguments. */
+export async function callApi(method: unknown, args: unknown, ctx: CallContext = {}): Promise<ApiResult<unknown>> {
+  if (!isApiMethod(method)) return refuse([{ path: 'method', message: `"${String(method)}" is not a Fenceline api method.` }]);
+  const entry = METHODS[method];
+  const problems = checkShape(args, entry.args, 'args');
+  if (problems.length) return refuse(problems);
+  return (entry.run as Handler<ApiMethod>)(args as never, ctx);
 }
