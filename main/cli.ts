@@ -6,6 +6,7 @@ import { parseArgs } from 'node:util';
 import { OUTPUT_FORMATS, type ApiResult, type OutputFormat, type SettingsOverrides } from './contract/api.ts';
 import type { Problem } from './rules/types.ts';
 import { checkStudy, evaluateStudy, runDemo } from './api.ts';
+import { AVAILABLE_MEMO_FORMATS } from './api/evaluate.ts';
 import { progressPrinter } from './cli/progress.ts';
 import { formatCheckReport, formatEvaluateSummary } from './cli/summaries.ts';
 
@@ -80,7 +81,8 @@ async function main(argv: string[]): Promise<number> {
   const controller = new AbortController();
   process.once('SIGINT', () => controller.abort());
   const ctx = { onProgress: printer, signal: controller.signal };
-  const formats = parseFormats(values.formats, []);
+  // default: every memo format this version can write (results.json and units.csv are always written)
+  const formats = parseFormats(values.formats, [...AVAILABLE_MEMO_FORMATS]);
   const workers = parseWhole(values.workers, '--workers');
 
   switch (command) {
