@@ -187,7 +187,7 @@ export async function runStudy(study: Study, options: RunOptions): Promise<Check
       });
       warnings.push(...local.warnings);
     }
-    return { column: o.column, label: o.label, missing: o.missing, byDelta: o.byDelta, naiveOls: o.naiveOls, ivNoControl: o.ivNoControl, sensitivity, localLinear: local };
+    return { ...o, sensitivity, localLinear: local };
   });
   const middle = Math.floor(ps.deltas.length / 2);
   const thresholds = thresholdChanges({

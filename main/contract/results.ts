@@ -2,7 +2,7 @@
 // renderer. The keys CLI.md requires are here with the meanings it gives; the rest extends them.
 
 import type { VariableScale } from '../design/scaling.ts';
-import type { ComparisonEstimate, DeltaEstimate } from '../estimate/aps-iv.ts';
+import type { OutcomeEstimates } from '../estimate/aps-iv.ts';
 import type { BalanceJoint, BalanceRow } from '../estimate/balance.ts';
 import type { ComplierProfile } from '../estimate/compliers.ts';
 import type { DeltaComposition } from '../estimate/composition.ts';
@@ -65,13 +65,7 @@ export interface DesignDelta {
   maxSimulationSe: number;
 }
 
-export interface OutcomeResults {
-  column: string;
-  label: string;
-  missing: number;
-  byDelta: DeltaEstimate[];
-  naiveOls: ComparisonEstimate;
-  ivNoControl: ComparisonEstimate;
+export interface OutcomeResults extends OutcomeEstimates {
   sensitivity: SensitivityResult;
   localLinear: LocalLinearResult | null;
 }

@@ -18,6 +18,7 @@
 import { EstimateInputError } from './errors.ts';
 import { clusterMeat, inverseGram, leverages, sandwich, weightedMeat, type Decomposition } from './linalg.ts';
 import type { ClusterIds, VarianceType } from './types.ts';
+import { globalClusterCodes } from './subset.ts';
 
 export const VARIANCE_TYPES: readonly VarianceType[] = ['classical', 'HC0', 'HC1', 'HC2', 'HC3', 'CR1'];
 
@@ -35,24 +36,15 @@ export function clusterCodes(ids: ClusterIds, n: number, what = 'the cluster col
       `${capitalize(what)} has ${ids.length} values but the data have ${n} units; give one cluster id per unit.`,
     );
   }
-  const codes = new Int32Array(n);
-  const seen = new Map<number | string, number>();
-  for (let i = 0; i < n; i++) {
-    const id = ids[i]!;
-    if ((typeof id === 'number' && !Number.isFinite(id)) || (typeof id === 'string' && id.trim() === '')) {
-      throw new EstimateInputError(
-        'bad-clusters',
-        `${capitalize(what)} is missing for unit ${i + 1} of the estimation sample; every unit needs a cluster id (or leave clustering out).`,
-      );
-    }
-    let c = seen.get(id);
-    if (c === undefined) {
-      c = seen.size;
-      seen.set(id, c);
-    }
-    codes[i] = c;
+  const { codes, count } = globalClusterCodes(ids);
+  const missing = codes.indexOf(-1);
+  if (missing >= 0) {
+    throw new EstimateInputError(
+      'bad-clusters',
+      `${capitalize(what)} is missing for unit ${missing + 1} of the estimation sample; every unit needs a cluster id (or leave clustering out).`,
+    );
   }
-  return { codes, count: seen.size };
+  return { codes, count };
 }
 
 export interface CovarianceResult {
