@@ -20,11 +20,13 @@ import { openWorkspace } from '../store/workspace.ts';
 import type { DatasetColumnInput } from '../store/types.ts';
 import { SOFTWARE_VERSION } from '../store/software-version.ts';
 import { readStudyData, runStudy, type StudyRun } from '../study.ts';
+import { figureData } from '../report/figure-data.ts';
+import { memoFiles } from '../report/memo-files.ts';
 import { loadStudyFile } from '../studyfile/load.ts';
 import { refuse, type CallContext } from './context.ts';
 
-/** The memo formats this version can write (the memo arrives with the report module). */
-export const AVAILABLE_MEMO_FORMATS: readonly OutputFormat[] = [];
+/** The memo formats this version can write (docs/cli.md: memo.pdf, memo.html, memo.docx, tables.xlsx). */
+export const AVAILABLE_MEMO_FORMATS: readonly OutputFormat[] = ['pdf', 'html', 'docx', 'xlsx'];
 
 export async function checkStudy(args: CheckArgs, ctx: CallContext = {}): Promise<ApiResult<CheckReport>> {
   const loaded = loadStudyFile(args.studyPath);
@@ -138,6 +140,11 @@ export async function evaluateStudy(args: EvaluateArgs, ctx: CallContext = {}): 
     { name: 'results.json', content: JSON.stringify(r.results, null, 2) + '\n' },
     { name: 'units.csv', content: unitsCsv({ ids: r.units.ids, z: r.units.z, d: r.units.d, deltas: r.results.settings.deltas, aps: r.units.aps }) },
   ];
+  // The memo is rendered before anything is written, so results.json and the memo files are
+  // renamed into place together (write-files.ts) and always come from the same run.
+  if (formats.length) {
+    files.push(...await memoFiles(r.results, figureData(r), formats, { createdAt: startedAt, ...(ctx.onProgress ? { onProgress: ctx.onProgress } : {}) }));
+  }
   const written = writeFilesAtomically(resolve(args.outDir), files);
   let runId: number | null = null;
   if (args.workspacePath) {

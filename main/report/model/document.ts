@@ -92,7 +92,17 @@ export interface NumberRun {
   format: NumberFormat;
   style?: TextStyle;
   footnote?: string;
+  /** Where the value comes from (see NumberSource); the memo test checks it against results.json. */
+  source?: NumberSource;
 }
+
+/**
+ * Where a printed number comes from: a path into results.json such as
+ * "outcomes[0].byDelta[1].ci[0]", a ratio or difference of two paths ("a / b", "a - b",
+ * "(a - b) / c"), "abs(a)", or "constant:NAME" for a fixed constant of the method (named in
+ * main/report/model/memo-constants.ts). Plain text: the tree stays JSON.
+ */
+export type NumberSource = string;
 
 /** A count hidden in running text (e.g. "≤10 rows were excluded"). The value is not kept. */
 export interface SuppressedRun {
@@ -155,7 +165,7 @@ export interface TableColumn {
 export type Cell = TextCell | NumberCell | SuppressedCell | EmptyCell;
 
 export interface TextCell { kind: 'text'; text: string; footnote?: string }
-export interface NumberCell { kind: 'number'; value: number; format?: NumberFormat; footnote?: string }
+export interface NumberCell { kind: 'number'; value: number; format?: NumberFormat; footnote?: string; source?: NumberSource }
 /** A hidden count, or a figure from which one could be worked out. The value is not kept. */
 export interface SuppressedCell { kind: 'suppressed'; reason: SuppressionReason }
 /** Nothing to show (not applicable); printed blank. */

@@ -1,0 +1,59 @@
+// The memo files of one run: the document built once from the results and the figure data,
+// the figures rendered to PNG once and shared by every format, then each chosen format rendered
+// (file names from docs/cli.md: memo.pdf, memo.html, memo.docx, tables.xlsx). Progress: stage
+// 'memo', one step for the figures and one per format.
+
+import type { OutputFormat, ProgressEvent } from '../contract/api.ts';
+import type { Results } from '../contract/results.ts';
+import type { OutputFile } from '../output/write-files.ts';
+import type { Document } from './model/document.ts';
+import type { FigureData } from './model/figure-types.ts';
+import { buildMemo, type MemoOptions } from './model/memo.ts';
+import { renderDocx } from './render/docx.ts';
+import { figuresOf, renderFigures } from './render/figures.ts';
+import { renderHtml } from './render/html.ts';
+import { renderPdf } from './render/pdf.ts';
+import { renderXlsx } from './render/xlsx.ts';
+
+export const MEMO_FILE_NAMES: Readonly<Record<OutputFormat, string>> = {
+  pdf: 'memo.pdf',
+  html: 'memo.html',
+  docx: 'memo.docx',
+  xlsx: 'tables.xlsx',
+};
+
+const RENDERERS: Readonly<Record<OutputFormat, (doc: Document, figures: Map<string, Buffer>) => Promise<Buffer | string>>> = {
+  pdf: (doc, figures) => renderPdf(doc, { figures }),
+  html: (doc, figures) => renderHtml(doc, { figures }),
+  docx: (doc, figures) => renderDocx(doc, { figures }),
+  xlsx: (doc) => renderXlsx(doc),
+};
+
+export interface MemoFilesOptions extends MemoOptions {
+  onProgress?: (p: ProgressEvent) => void;
+}
+
+/** Render an already built memo document in the chosen formats. */
+export async function renderMemoDocument(doc: Document, formats: readonly OutputFormat[], onProgress?: (p: ProgressEvent) => void): Promise<OutputFile[]> {
+  const chosen = [...new Set(formats)];
+  if (!chosen.length) return [];
+  const needFigures = chosen.some((f) => f !== 'xlsx') && figuresOf(doc).length > 0;
+  const total = chosen.length + (needFigures ? 1 : 0);
+  let done = 0;
+  onProgress?.({ stage: 'memo', done, total });
+  const figures = needFigures ? await renderFigures(doc) : new Map<string, Buffer>();
+  if (needFigures) onProgress?.({ stage: 'memo', done: ++done, total });
+  const files: OutputFile[] = [];
+  for (const f of chosen) {
+    files.push({ name: MEMO_FILE_NAMES[f], content: await RENDERERS[f](doc, figures) });
+    onProgress?.({ stage: 'memo', done: ++done, total });
+  }
+  return files;
+}
+
+/** Build the memo from the results and figure data and render it in the chosen formats. */
+export async function memoFiles(results: Results, figures: FigureData, formats: readonly OutputFormat[], opts: MemoFilesOptions): Promise<OutputFile[]> {
+  if (!formats.length) return [];
+  const doc = buildMemo(results, figures, { createdAt: opts.createdAt, ...(opts.author ? { author: opts.author } : {}) });
+  return renderMemoDocument(doc, formats, opts.onProgress);
+}

@@ -1,0 +1,71 @@
+// The data behind the memo's figures, computed from a run's per-unit arrays by
+// main/report/figure-data.ts (not stored in results.json). Counts arrive already suppressed
+// (null = a small bin, drawn blank); means over a bin with a hidden count arrive as null.
+// Figures are pictures: no number printed in the memo's text or tables comes from here.
+
+import type { Side } from '../charts/spec.ts';
+
+export interface AxisVariable {
+  key: string;
+  label: string;
+  unit?: string;
+}
+
+export interface BoundaryMapData {
+  x: AxisVariable;
+  y: AxisVariable;
+  /** The delta of the band (the headline delta). */
+  delta: number;
+  grid: { xEdges: number[]; yEdges: number[]; probability: number[][]; inBand: boolean[][] };
+  counts: { xEdges: number[]; yEdges: number[]; values: Array<Array<number | null>> };
+  /** The discrete inputs held fixed, e.g. "People in household: 2 (the most common among units near the edge)". */
+  panel: string | null;
+  /** Other continuous inputs held at a value, e.g. "Years employed held at 4.5 (median near the edge)". */
+  heldFixed: string[];
+}
+
+export interface BinnedMean {
+  x: number;
+  mean: number | null;
+  side: Side;
+}
+
+export interface SideFit {
+  side: Side;
+  points: Array<{ x: number; y: number }>;
+}
+
+export interface BinnedSeries {
+  bins: BinnedMean[];
+  fits: SideFit[];
+}
+
+/** Outcomes and take-up against the signed distance to the nearest edge (docs/memo.md). */
+export interface SignedDistanceData {
+  /** Half-width of the window shown, in scaled units. */
+  window: number;
+  binWidth: number;
+  /** Take-up (share receiving) per bin; null without a treatment column. */
+  takeUp: BinnedSeries | null;
+  outcomes: Array<{ column: string; series: BinnedSeries }>;
+}
+
+export interface DensityFigureData {
+  /** Index into results.density. */
+  check: number;
+  atom: number;
+  x: AxisVariable;
+  bins: Array<{ from: number; to: number; count: number | null }>;
+}
+
+export interface FigureData {
+  /** Null with a reason when no map can be drawn (fewer than two continuous inputs, no unit near the edge). */
+  boundaryMap: BoundaryMapData | null;
+  boundaryMapNote: string | null;
+  signedDistance: SignedDistanceData | null;
+  density: DensityFigureData[];
+  /** Standardized differences over all units (offered minus not offered, no adjustment), per covariate. */
+  balanceAll: Array<{ covariate: string; standardizedDiff: number | null }>;
+}
+
+export const NO_FIGURES: FigureData = { boundaryMap: null, boundaryMapNote: null, signedDistance: null, density: [], balanceAll: [] };

@@ -1,0 +1,75 @@
+// Formats, words and small helpers shared by the memo's sections.
+
+import type { OutcomeResults, Results } from '../../contract/results.ts';
+import type { NumberFormat } from './document.ts';
+
+export const COUNT: NumberFormat = { style: 'integer' };
+export const PERCENT: NumberFormat = { style: 'percent', decimals: 1 };
+export const PVALUE: NumberFormat = { style: 'pvalue' };
+export const F_STAT: NumberFormat = { style: 'decimal', decimals: 1 };
+export const STD_DIFF: NumberFormat = { style: 'decimal', decimals: 2, signed: true };
+export const DELTA: NumberFormat = { style: 'decimal', decimals: 2 };
+
+/** The index of the headline delta: the one the threshold-change projection uses, else the middle one. */
+export function headlineIndex(r: Results): number {
+  const tc = r.thresholdChanges;
+  if (tc) {
+    const i = r.settings.deltas.indexOf(tc.delta);
+    if (i >= 0) return i;
+  }
+  return Math.floor(r.settings.deltas.length / 2);
+}
+
+/** "Utility arrears in March (USD)" → { name: "Utility arrears in March", unit: "USD" }. */
+export function outcomeName(o: Pick<OutcomeResults, 'label' | 'column'>): { name: string; unit?: string } {
+  const label = o.label || o.column;
+  const m = /^(.*\S)\s*\(([^()]+)\)\s*$/.exec(label);
+  return m ? { name: m[1]!, unit: m[2]! } : { name: label };
+}
+
+/** Decimals so that the standard error shows two significant digits (at most 6, at least 0). */
+export function decimalsFor(se: number | null | undefined): number {
+  if (se === null || se === undefined || !(se > 0) || !Number.isFinite(se)) return 2;
+  return Math.min(6, Math.max(0, 1 - Math.floor(Math.log10(se))));
+}
+
+/** The number format of an outcome's effects: decimals from the headline standard error. */
+export function effectFormat(o: OutcomeResults, headline: number, opts: { signed?: boolean; unit?: boolean } = {}): NumberFormat {
+  const se = o.byDelta[headline]?.se ?? o.byDelta.find((b) => b.se !== null)?.se ?? null;
+  const f: NumberFormat = { style: 'decimal', decimals: decimalsFor(se) };
+  const unit = outcomeName(o).unit;
+  if (opts.unit && unit) f.unit = unit;
+  if (opts.signed) f.signed = true;
+  return f;
+}
+
+export function lowerFirst(s: string): string {
+  return s.length > 1 && /^[A-Z][a-z]/.test(s) ? s[0]!.toLowerCase() + s.slice(1) : s;
+}
+
+export function upperFirst(s: string): string {
+  return s ? s[0]!.toUpperCase() + s.slice(1) : s;
+}
+
+/** Plural of the program's unit word ("household" → "households"). */
+export function plural(unit: string): string {
+  if (/(s|x|ch|sh)$/.test(unit)) return unit + 'es';
+  if (/[^aeiou]y$/.test(unit)) return unit.slice(0, -1) + 'ies';
+  return unit + 's';
+}
+
+export function unitWords(r: Results): { one: string; many: string } {
+  const one = r.program.unit || 'unit';
+  return { one, many: plural(one) };
+}
+
+/** The words for what the estimate is the effect of. */
+export function effectOf(r: Results): string {
+  return r.estimand.kind === 'treatment' ? 'receiving the benefit' : 'being offered the benefit';
+}
+
+/** A criterion of the rule in words, as a sentence subject ("The household's age … is at least 65"). */
+export function criterionText(r: Results, atom: number, one: string): string {
+  const c = r.program.criteria.find((x) => x.atom === atom);
+  return c ? upperFirst(c.description.replace(/^its /, `the ${one}'s `)) : `Criterion ${atom + 1}`;
+}
