@@ -4,7 +4,10 @@ import { spawnSync } from 'node:child_process';
 import { existsSync, mkdtempSync, readFileSync, readdirSync, writeFileSync, copyFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
+import { Writable } from 'node:stream';
 import { describe, expect, it } from 'vitest';
+import { progressPrinter } from '../../main/cli/progress.ts';
+import { winterCreditSample } from '../../main/data/synthetic/winter-credit.ts';
 
 const ROOT = join(__dirname, '../..');
 const SAMPLE = join(ROOT, 'sample-programs/winter-credit/study.json');
@@ -15,15 +18,24 @@ function cli(...args: string[]) {
 }
 const tmp = () => mkdtempSync(join(tmpdir(), 'fenceline-cli-'));
 
-/** A copy of the sample study in a temp folder, changed by `edit`, with its data beside it. */
-function studyCopy(edit: (s: any) => void, data?: (csv: string) => string): string {
+const SAMPLE_DIR = join(ROOT, 'sample-programs/winter-credit');
+
+/** A copy of the sample study in a temp folder, changed by `edit`, with its data files beside it. */
+function studyCopy(edit: (s: any) => void, files: Record<string, string> = {}): string {
   const dir = tmp();
   const s = JSON.parse(readFileSync(SAMPLE, 'utf8'));
   edit(s);
   writeFileSync(join(dir, 'study.json'), JSON.stringify(s, null, 2));
-  const csv = readFileSync(join(ROOT, 'sample-programs/winter-credit/applicants.csv'), 'utf8');
-  writeFileSync(join(dir, 'applicants.csv'), data ? data(csv) : csv);
+  for (const f of ['applicants.xlsx', 'payments.xlsx', 'outcomes.csv']) copyFileSync(join(SAMPLE_DIR, f), join(dir, f));
+  for (const [name, text] of Object.entries(files)) writeFileSync(join(dir, name), text);
   return join(dir, 'study.json');
+}
+
+/** The sample's roster as CSV text (RFC 4180, CRLF), from its generator. */
+function rosterCsv(): string {
+  const { roster } = winterCreditSample();
+  const field = (v: string | number | null) => (v === null ? '' : /[",\r\n]/.test(String(v)) ? `"${String(v).replace(/"/g, '""')}"` : String(v));
+  return [roster.header.join(','), ...roster.rows.map((r) => r.map(field).join(','))].join('\r\n') + '\r\n';
 }
 
 describe('fenceline evaluate', () => {
@@ -73,19 +85,22 @@ describe('fenceline evaluate', () => {
     expect(Math.abs(r.outcomes[0].naiveOls.estimate + 40)).toBeGreaterThan(20);
   });
 
-  it('counts every excluded row with its reason and spreadsheet row', () => {
-    const path = studyCopy(() => {}, (csv) => {
-      const lines = csv.split('\r\n');
-      lines[5] = lines[5]!.replace(/^(A-\d+),\d+,/, '$1,n/a,'); // HH_INCOME not a number on spreadsheet row 6
-      return lines.join('\r\n');
-    });
+  it('counts every excluded row with its reason and spreadsheet row (roster as CSV, joined to the other two files)', () => {
+    const lines = rosterCsv().split('\r\n');
+    lines[5] = lines[5]!.replace(/^(A-\d+),\d+,/, '$1,n/a,'); // HH_INCOME not a number on spreadsheet row 6
+    const path = studyCopy((s) => { s.data.path = 'applicants.csv'; delete s.data.sheet; }, { 'applicants.csv': lines.join('\r\n') });
     const out = tmp();
     const res = cli('evaluate', path, '--out', out, '--formats', 'none', '--draws', '200');
     expect(res.code, res.stderr).toBe(0);
     const r = JSON.parse(readFileSync(join(out, 'results.json'), 'utf8'));
-    expect(r.study.rowsUsed).toBe(r.study.rowsRead - 1);
-    expect(r.study.rowsExcluded).toEqual([expect.objectContaining({ count: 1, rows: [6] })]);
-    expect(r.study.rowsExcluded[0].reason).toMatch(/HH_INCOME/);
+    // the generator's planted rows sit 2 rows higher in the CSV (no title line, no empty row)
+    const planted = winterCreditSample().planted.map((p) => ({ ...p, sheetRow: p.sheetRow - 2 }));
+    expect(r.study.rowsUsed).toBe(r.study.rowsRead - 1 - planted.length);
+    const income = r.study.rowsExcluded.find((e: any) => e.reason === 'HH_INCOME is not a number');
+    expect(income.rows).toEqual([6, ...planted.filter((p) => p.reason === 'HH_INCOME is not a number').map((p) => p.sheetRow)].sort((a, b) => a - b));
+    expect(income.count).toBe(income.rows.length);
+    expect(r.study.dataFile).toBe('applicants.csv');
+    expect(r.study.joins.map((j: any) => j.source)).toEqual(['payments.xlsx', 'outcomes.csv']);
   });
 
   it('records the run in a workspace file', () => {
@@ -126,9 +141,85 @@ describe('fenceline check', () => {
   it('reports rows, the rule in words and fidelity to the recorded decisions, estimating nothing', () => {
     const r = cli('check', SAMPLE);
     expect(r.code, r.stderr).toBe(0);
-    expect(r.stdout).toMatch(/20,000 rows read/);
+    expect(r.stdout).toMatch(/20,002 rows read, 19,997 usable, 5 excluded/);
     expect(r.stdout).toMatch(/Recorded decisions: .* agree with the formula/);
     expect(r.stdout).toMatch(/A household is eligible if/);
+  });
+});
+
+describe('--help', () => {
+  it.each([
+    ['evaluate', /^Usage: npm run --silent cli -- evaluate <study\.json> --out <dir>/, /--deltas .*--draws .*--seed .*--formats .*--workspace .*--workers .*--quiet/s],
+    ['check', /^Usage: npm run --silent cli -- check <study\.json>/, /estimating anything/],
+    ['demo', /^Usage: npm run --silent cli -- demo --out <dir>/, /sample-programs\/winter-credit/],
+  ])('%s --help prints that command\'s usage on stdout and exits 0', (command, head, body) => {
+    // `-h` and `help <command>` for one command each, to keep the file quick
+    const forms = command === 'check' ? [[command, '--help'], [command, '-h']] : command === 'demo' ? [[command, '--help'], ['help', command]] : [[command, '--help']];
+    for (const args of forms) {
+      const r = cli(...args);
+      expect(r.code, r.stderr).toBe(0);
+      expect(r.stdout).toMatch(head);
+      expect(r.stdout).toMatch(body);
+      expect(r.stdout).toMatch(/Exit status: 0 done; 2 the input is wrong/);
+      expect(r.stderr).toBe('');
+    }
+  });
+
+  it('--help alone prints the list of commands; an unknown command with --help is refused', () => {
+    const all = cli('--help');
+    expect(all.code).toBe(0);
+    for (const c of ['evaluate', 'check', 'demo']) expect(all.stdout).toContain(`cli -- ${c}`);
+    const bad = cli('estimate', '--help');
+    expect(bad.code).toBe(2);
+    expect(bad.stderr).toMatch(/"estimate" is not a command/);
+  });
+});
+
+describe('progress on stderr', () => {
+  /** A stream that records what is written to it and says it is (or is not) a terminal. */
+  function recorder(isTTY: boolean) {
+    const chunks: string[] = [];
+    const stream = new Writable({ write(chunk, _enc, done) { chunks.push(String(chunk)); done(); } }) as Writable & { isTTY: boolean; columns: number };
+    stream.isTTY = isTTY;
+    stream.columns = 100;
+    return { stream: stream as unknown as NodeJS.WriteStream, text: () => chunks.join('') };
+  }
+  const events = [
+    { stage: 'import', done: 0, total: 200 }, { stage: 'import', done: 50, total: 200 }, { stage: 'import', done: 200, total: 200 },
+    { stage: 'propensity', done: 0, total: 10 }, { stage: 'propensity', done: 4, total: 10 },
+    { stage: 'estimate', done: 0, total: 1 },
+  ];
+
+  it('draws a bar per stage on a terminal, redrawn in place, each closed at 100%', () => {
+    const out = recorder(true);
+    const printer = progressPrinter(out.stream, { tty: true });
+    for (const e of events) printer(e);
+    printer.finish();
+    const text = out.text();
+    expect(text).toMatch(/Reading the data\s+\S+ 100%/);
+    // the propensity stage handed over to the next one: its bar is closed full
+    expect(text).toMatch(/Computing propensity scores\s+\S+ 100%/);
+    expect(text).toMatch(/Estimating/);
+    expect(text).toMatch(/\u001b\[/); // terminal control sequences: the bar is redrawn, not appended
+  });
+
+  it('writes plain lines, one per tenth, when stderr is not a terminal; nothing with --quiet', () => {
+    const out = recorder(false);
+    const printer = progressPrinter(out.stream);
+    for (const e of events) printer(e);
+    printer.finish();
+    expect(out.text()).toBe('Reading the data: 0%\nReading the data: 25%\nReading the data: 100%\nComputing propensity scores: 0%\nComputing propensity scores: 40%\nEstimating: 0%\n');
+    const quiet = recorder(false);
+    const silent = progressPrinter(quiet.stream, false);
+    for (const e of events) silent(e);
+    expect(quiet.text()).toBe('');
+  });
+
+  it('prints plain progress lines from the command line when stderr is a pipe', () => {
+    const r = cli('check', SAMPLE);
+    expect(r.code, r.stderr).toBe(0);
+    expect(r.stderr).toMatch(/^Reading the data: \d+%$/m);
+    expect(r.stderr).not.toMatch(/\u001b\[/);
   });
 });
 
