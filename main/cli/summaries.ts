@@ -11,7 +11,7 @@ export function formatCheckReport(r: CheckReport): string {
     `${r.title}`,
     `Data: ${r.dataFile}${r.sheet ? ` › ${r.sheet}` : ''} — ${n(r.rowsRead)} rows read, ${n(r.rowsUsed)} usable, ${n(r.rowsRead - r.rowsUsed)} excluded.`,
   ];
-  for (const e of r.rowsExcluded) lines.push(`  excluded: ${n(e.count)} — ${e.reason}${e.rows.length ? ` (rows ${e.rows.slice(0, 5).join(', ')}${e.count > 5 ? ', …' : ''})` : ''}`);
+  for (const e of r.rowsExcluded) lines.push(`  excluded: ${n(e.count)} — ${e.reason}${e.rows.length ? ` (${e.rows.length === 1 ? 'row' : 'rows'} ${e.rows.slice(0, 5).join(', ')}${e.count > 5 ? ', …' : ''})` : ''}`);
   for (const o of r.outcomesMissing) if (o.count) lines.push(`  outcome ${o.column}: missing for ${n(o.count)} units (left out of that outcome's estimates)`);
   lines.push(`Rule: ${r.ruleWording}`);
   lines.push(`Eligible by the formula: ${n(r.eligible)} of ${n(r.rowsUsed)}.`);

@@ -456,10 +456,13 @@ export function mapStudyColumns(table: RawTable, spec: ColumnSpec, joins: readon
     const m = matches.get(j)!;
     return { source: j.source, matched: m.matched, unmatchedKeys: m.unmatchedKeys, duplicateKeys: m.duplicateKeys };
   });
-  for (const r of joinReports) {
-    if (r.unmatchedKeys.count > 0) notes.push({ code: 'join-unmatched', message: `${r.source}: ${r.unmatchedKeys.count} ${idName} value${r.unmatchedKeys.count > 1 ? 's match' : ' matches'} no unit (such as ${r.unmatchedKeys.examples.slice(0, 3).join(', ')}).` });
-    if (r.duplicateKeys.count > 0) notes.push({ code: 'join-duplicates', message: `${r.source}: ${r.duplicateKeys.count} ${idName} value${r.duplicateKeys.count > 1 ? 's appear' : ' appears'} on more than one row (such as ${r.duplicateKeys.examples.slice(0, 3).join(', ')}).` });
-  }
+  joinReports.forEach((r, i) => {
+    // name the joined file's own key column (e.g. CASE_NO), which may differ from the unit file's ID
+    const j = joins[i]!;
+    const key = j.table.columns[j.keyColumn]!.name;
+    if (r.unmatchedKeys.count > 0) notes.push({ code: 'join-unmatched', message: `${r.source}: ${r.unmatchedKeys.count} ${key} value${r.unmatchedKeys.count > 1 ? 's match' : ' matches'} no unit (such as ${r.unmatchedKeys.examples.slice(0, 3).join(', ')}).` });
+    if (r.duplicateKeys.count > 0) notes.push({ code: 'join-duplicates', message: `${r.source}: ${r.duplicateKeys.count} ${key} value${r.duplicateKeys.count > 1 ? 's appear' : ' appears'} on more than one row (such as ${r.duplicateKeys.examples.slice(0, 3).join(', ')}).` });
+  });
 
   return {
     ok: true,
