@@ -6,10 +6,20 @@ import { API_METHODS, OUTPUT_FORMATS, type ApiMethod, type ApiMethods, type ApiR
 import { checkShape, type Shape } from './api/args.ts';
 import { refuse, type CallContext } from './api/context.ts';
 import { checkStudy, evaluateStudy, runDemo } from './api/evaluate.ts';
+import { checkDraftStudy, previewData } from './api/data.ts';
+import { boundaryMap } from './api/figures.ts';
+import { listFolder, openDialog, previewMemo, saveDialog } from './api/files.ts';
+import type { HostContext } from './api/host.ts';
+import { checkProgram, tryUnit } from './api/program.ts';
+import { listSamples, openStudy, saveStudy } from './api/studies.ts';
+import { recentWork, recordedRun, workspaceInfo } from './api/workspace.ts';
 
-export { checkStudy, evaluateStudy, runDemo, type CallContext };
+export { checkStudy, evaluateStudy, runDemo, type CallContext, type HostContext };
 
-type Handler<M extends ApiMethod> = (args: ApiMethods[M]['args'], ctx: CallContext) => Promise<ApiResult<ApiMethods[M]['result']>>;
+type Handler<M extends ApiMethod> = (args: ApiMethods[M]['args'], ctx: HostContext) => Promise<ApiResult<ApiMethods[M]['result']>>;
+
+const NO_ARGS: Shape = { object: {} };
+const path: Shape = 'string';
 
 const formats: Shape = { list: { oneOf: OUTPUT_FORMATS }, max: OUTPUT_FORMATS.length };
 const overrides: Shape = { object: { deltas: { list: 'number', max: 50 }, draws: 'integer', seed: 'integer' }, optional: ['deltas', 'draws', 'seed'] };
@@ -21,14 +31,36 @@ const METHODS: { [M in ApiMethod]: { args: Shape; run: Handler<M> } } = {
     run: evaluateStudy,
   },
   'demo.run': { args: { object: { outDir: 'string', formats, workers: 'integer' }, optional: ['formats', 'workers'] }, run: runDemo },
+  // The app's methods. `unknown` parts (a program, a study) are checked in full by their validators.
+  'program.check': { args: { object: { program: 'unknown' } }, run: checkProgram },
+  'program.tryUnit': { args: { object: { program: 'unknown', values: 'unknown' } }, run: tryUnit },
+  'study.open': { args: { object: { path } }, run: openStudy },
+  'study.save': { args: { object: { path, study: 'unknown', baseDir: path }, optional: ['baseDir'] }, run: saveStudy },
+  'samples.list': { args: NO_ARGS, run: listSamples },
+  'data.preview': {
+    args: { object: { path, sheet: 'string', headerRow: 'integer', program: 'unknown' }, optional: ['sheet', 'headerRow', 'program'] },
+    run: previewData,
+  },
+  'data.check': { args: { object: { study: 'unknown', baseDir: path }, optional: ['baseDir'] }, run: checkDraftStudy },
+  'workspace.info': { args: NO_ARGS, run: workspaceInfo },
+  'workspace.recent': { args: NO_ARGS, run: recentWork },
+  'workspace.run': { args: { object: { runId: 'integer' } }, run: recordedRun },
+  'files.list': { args: { object: { dir: path, kind: { oneOf: ['study', 'data'] } } }, run: listFolder },
+  'dialog.openFile': { args: { object: { purpose: { oneOf: ['study', 'data'] }, defaultPath: path }, optional: ['defaultPath'] }, run: openDialog },
+  'dialog.saveFile': { args: { object: { purpose: { oneOf: ['study', 'data'] }, defaultPath: path }, optional: ['defaultPath'] }, run: saveDialog },
+  'memo.preview': { args: { object: { path } }, run: previewMemo },
+  'figure.map': { args: { object: { studyPath: path, workers: 'integer' }, optional: ['workers'] }, run: boundaryMap },
 };
+
+/** The methods this build implements (the contract's list, checked against the registry in tests). */
+export const REGISTERED_METHODS: readonly string[] = Object.keys(METHODS);
 
 export function isApiMethod(name: unknown): name is ApiMethod {
   return typeof name === 'string' && (API_METHODS as readonly string[]).includes(name);
 }
 
 /** Call a method by name with untrusted arguments. */
-export async function callApi(method: unknown, args: unknown, ctx: CallContext = {}): Promise<ApiResult<unknown>> {
+export async function callApi(method: unknown, args: unknown, ctx: HostContext = {}): Promise<ApiResult<unknown>> {
   if (!isApiMethod(method)) return refuse([{ path: 'method', message: `"${String(method)}" is not a Fenceline api method.` }]);
   const entry = METHODS[method];
   const problems = checkShape(args, entry.args, 'args');

@@ -27,8 +27,15 @@ if (binary && existsSync(electronMain)) {
   spawn(binary, [electronMain], { stdio: 'inherit' }).on('exit', (code) => process.exit(code ?? 0));
 } else if (existsSync(serveEntry)) {
   console.error('The Electron runtime is not installed on this machine, so Fenceline opens in browser mode instead.');
-  spawn(process.execPath, ['--import', 'tsx', serveEntry, ...process.argv.slice(2)], { stdio: 'inherit', cwd: root })
+  const serve = () => spawn(process.execPath, ['--import', 'tsx', serveEntry, ...process.argv.slice(2)], { stdio: 'inherit', cwd: root })
     .on('exit', (code) => process.exit(code ?? 0));
+  if (existsSync(join(root, 'dist/renderer/index.html'))) serve();
+  else {
+    console.error('Building the screens first (npm run build:app)…');
+    const vite = join(root, 'node_modules/vite/bin/vite.js');
+    spawn(process.execPath, [vite, 'build', '--config', 'vite.config.ts', '--logLevel', 'warn'], { stdio: ['ignore', 'ignore', 'inherit'], cwd: root })
+      .on('exit', (code) => { if (code === 0) serve(); else { console.error('The screens could not be built; see the messages above.'); process.exit(code ?? 1); } });
+  }
 } else {
   console.error(
     'The desktop app and browser mode are not built in this version of Fenceline yet.\n' +

@@ -2,6 +2,7 @@
 // mode over HTTP, Electron over IPC. Types only.
 
 import type { Results } from './results.ts';
+import type { BoundaryMapSpec } from '../report/charts/spec.ts';
 import type { StudySettings } from './study.ts';
 import type { Problem } from '../rules/types.ts';
 
@@ -51,10 +52,194 @@ export interface EvaluateReport {
 
 export interface DemoArgs { outDir: string; formats?: OutputFormat[]; workers?: number }
 
-export interface ApiMethods {
+export interface ApiMethods extends AppApiMethods {
   'study.check': { args: CheckArgs; result: CheckReport };
   'study.evaluate': { args: EvaluateArgs; result: EvaluateReport };
   'demo.run': { args: DemoArgs; result: EvaluateReport };
 }
 export type ApiMethod = keyof ApiMethods;
-export const API_METHODS: readonly ApiMethod[] = ['study.check', 'study.evaluate', 'demo.run'];
+export const API_METHODS: readonly ApiMethod[] = [
+  'study.check', 'study.evaluate', 'demo.run',
+  'program.check', 'program.tryUnit', 'study.open', 'study.save', 'samples.list', 'data.preview', 'data.check',
+  'workspace.info', 'workspace.recent', 'workspace.run', 'files.list', 'dialog.openFile', 'dialog.saveFile', 'memo.preview',
+  'figure.map',
+];
+
+// ---- The desktop app's methods (issue 6) ------------------------------------------------------
+// The renderer works on study and program objects that are not saved yet, so these take values
+// (a program, a study) as well as paths. Arguments are untrusted: main/api.ts checks each shape.
+
+/** Where an app call runs: browser mode (serve.ts) or the Electron shell. */
+export type AppHost = 'browser' | 'electron' | 'cli';
+
+export interface CriterionInfo {
+  /** JSON path of the criterion, e.g. `program.rule.all[0]`. */
+  path: string;
+  description: string;
+  /** Keys of the variables the criterion reads. */
+  variables: string[];
+}
+
+export interface ProgramCheckArgs { program: unknown }
+/** A program checked as the analyst edits it: problems are an answer, not an error. */
+export interface ProgramCheck {
+  valid: boolean;
+  /** Every problem, each with the JSON path of the field it is about (`program.…`). */
+  problems: Problem[];
+  /** The whole rule in plain language (null while the program has problems). */
+  reading: string | null;
+  offerReading: string | null;
+  /** One entry per comparison or membership test, in the order they appear. */
+  criteria: CriterionInfo[];
+}
+
+export interface TryUnitArgs {
+  program: unknown;
+  /** Values typed by the analyst, by variable key: numbers, or text such as "21,000" or a value's label. */
+  values: Record<string, unknown>;
+}
+export interface TryUnitCriterion extends CriterionInfo {
+  /** null when a value it needs is missing or the limit has no entry for this unit. */
+  holds: boolean | null;
+  /** For a comparison: the value compared and the limit it was compared with. */
+  value: number | null;
+  limit: number | null;
+}
+export interface TryUnitReport {
+  /** 'unknown' when missing values leave the verdict open. */
+  verdict: 'eligible' | 'not eligible' | 'unknown';
+  /** Probability of an offer for this unit (null when the verdict is unknown). */
+  offerProbability: number | null;
+  /** One sentence for the analyst. */
+  sentence: string;
+  criteria: TryUnitCriterion[];
+  /** Problems with the typed values, each at `values.<key>`. */
+  problems: Problem[];
+}
+
+export interface StudyOpenArgs { path: string }
+export interface StudyOpened {
+  /** Absolute path of the study file. */
+  path: string;
+  /** Folder that relative paths in the study were resolved against. */
+  baseDir: string;
+  /** The study (its data paths relative to `baseDir` as written): validated, with defaults, when `problems` is empty; else as written. */
+  study: unknown;
+  problems: Problem[];
+}
+
+export interface StudySaveArgs {
+  path: string;
+  study: unknown;
+  /** Folder the study's relative data paths are relative to now (they are rewritten for the new file's folder). */
+  baseDir?: string;
+}
+export interface StudySaved { path: string }
+
+export interface SampleInfo { id: string; title: string; description: string; studyPath: string }
+export interface SamplesList { samples: SampleInfo[] }
+
+export interface DataPreviewArgs {
+  path: string;
+  sheet?: string;
+  /** Spreadsheet row of the column names; found automatically when absent. */
+  headerRow?: number;
+  /** The program being studied, so its variables can be matched to columns. */
+  program?: unknown;
+}
+export type ColumnRole =
+  | 'id' | 'variable' | 'outcome' | 'treatment' | 'decision' | 'cluster' | 'covariate' | 'control' | 'ignore';
+export interface PreviewColumn {
+  name: string;
+  letter: string;
+  /** What the cells hold: numbers, text, both, or nothing. */
+  holds: 'numbers' | 'text' | 'mixed' | 'empty';
+  /** Blank cells among the data rows. */
+  blanks: number;
+  /** Distinct values among the first 1,000 data rows (capped at 1,000). */
+  distinct: number;
+  suggestion: { role: ColumnRole; variable?: string; why: string } | null;
+}
+export interface DataPreview {
+  path: string;
+  fileName: string;
+  format: 'xlsx' | 'csv';
+  sheets: string[];
+  sheet: string | null;
+  headerRow: number;
+  rowCount: number;
+  columns: PreviewColumn[];
+  /** The first 20 data rows as shown text, with their spreadsheet row numbers. */
+  rows: Array<{ row: number; cells: string[] }>;
+  notes: Array<{ code: string; message: string }>;
+}
+
+export interface DataCheckArgs {
+  /** A study object not yet saved (paths absolute, or relative to `baseDir`). */
+  study: unknown;
+  baseDir?: string;
+}
+
+export interface WorkspaceInfo {
+  host: AppHost;
+  /** Folder of the workspace (studies the app saves, runs, the workspace file). */
+  dir: string;
+  workspacePath: string;
+  runsDir: string;
+  studiesDir: string;
+  /** Memo formats study.evaluate can write in this version. */
+  memoFormats: OutputFormat[];
+  /** True when the host has native open and save dialogs (Electron). */
+  dialogs: boolean;
+}
+
+export interface RecentStudy { path: string; title: string; openedAt: string }
+export interface RecentRun { runId: number; studyName: string; finishedAt: string }
+export interface WorkspaceRecent { studies: RecentStudy[]; runs: RecentRun[] }
+
+export interface WorkspaceRunArgs { runId: number }
+export interface WorkspaceRun { runId: number; studyName: string; finishedAt: string; study: unknown; results: Results }
+
+export interface FilesListArgs {
+  dir: string;
+  /** Which files to list besides folders. */
+  kind: 'study' | 'data';
+}
+export interface FilesList {
+  dir: string;
+  parent: string | null;
+  entries: Array<{ name: string; path: string; isFolder: boolean }>;
+}
+
+export interface DialogArgs { purpose: 'study' | 'data'; defaultPath?: string }
+export interface DialogAnswer { path: string | null }
+
+export interface MemoPreviewArgs { path: string }
+export interface MemoPreview { path: string; html: string }
+
+export interface MapArgs { studyPath: string; workers?: number }
+/** The boundary-region map of the memo (main/report/figure-data.ts): binned counts only, small cells hidden. */
+export interface MapFigure {
+  spec: BoundaryMapSpec | null;
+  /** Why there is no map, or what is held fixed. */
+  note: string | null;
+  deltas: number[];
+}
+
+export interface AppApiMethods {
+  'program.check': { args: ProgramCheckArgs; result: ProgramCheck };
+  'program.tryUnit': { args: TryUnitArgs; result: TryUnitReport };
+  'study.open': { args: StudyOpenArgs; result: StudyOpened };
+  'study.save': { args: StudySaveArgs; result: StudySaved };
+  'samples.list': { args: Record<string, never>; result: SamplesList };
+  'data.preview': { args: DataPreviewArgs; result: DataPreview };
+  'data.check': { args: DataCheckArgs; result: CheckReport };
+  'workspace.info': { args: Record<string, never>; result: WorkspaceInfo };
+  'workspace.recent': { args: Record<string, never>; result: WorkspaceRecent };
+  'workspace.run': { args: WorkspaceRunArgs; result: WorkspaceRun };
+  'files.list': { args: FilesListArgs; result: FilesList };
+  'dialog.openFile': { args: DialogArgs; result: DialogAnswer };
+  'dialog.saveFile': { args: DialogArgs; result: DialogAnswer };
+  'memo.preview': { args: MemoPreviewArgs; result: MemoPreview };
+  'figure.map': { args: MapArgs; result: MapFigure };
+}

@@ -1,0 +1,48 @@
+// Browser mode's transport: every call is a POST under /api/ carrying the per-launch token in a
+// header (never in the address, so it does not end up in logs or history). Long calls start a
+// job and poll its progress; cancelling posts to the job.
+
+import type { ApiResult, ProgressEvent } from '../../main/contract/api.ts';
+import type { CallOptions, Transport } from './api-client.ts';
+
+export const TOKEN_HEADER = 'X-Fenceline-Token';
+
+type Fetch = (url: string, init: { method: string; headers: Record<string, string>; body?: string }) => Promise<{ status: number; json(): Promise<unknown> }>;
+
+export interface JobStatus {
+  state: 'running' | 'done';
+  progress?: ProgressEvent | null;
+  result?: ApiResult<unknown>;
+}
+
+const POLL_MS = 150;
+const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
+
+export function httpTransport(token: string, fetchImpl: Fetch, base = ''): Transport {
+  const headers = { 'Content-Type': 'application/json', [TOKEN_HEADER]: token };
+  const post = async (path: string, body: unknown) => {
+    const r = await fetchImpl(`${base}${path}`, { method: 'POST', headers, body: JSON.stringify(body) });
+    if (r.status === 401 || r.status === 403) throw new Error('this page is not allowed to call the engine; open the address the terminal printed');
+    return r.json();
+  };
+  return {
+    async call(method, args, options: CallOptions) {
+      if (!options.onProgress && !options.signal) return (await post('/api/call', { method, args })) as ApiResult<unknown>;
+      const { jobId } = (await post('/api/jobs', { method, args })) as { jobId: string };
+      let cancelSent = false;
+      const cancel = () => { if (!cancelSent) { cancelSent = true; void post(`/api/jobs/${jobId}/cancel`, {}); } };
+      options.signal?.addEventListener('abort', cancel);
+      if (options.signal?.aborted) cancel();
+      try {
+        for (;;) {
+          const s = (await post(`/api/jobs/${jobId}`, {})) as JobStatus;
+          if (s.state === 'done' && s.result) return s.result;
+          if (s.progress) options.onProgress?.(s.progress);
+          await sleep(POLL_MS);
+        }
+      } finally {
+        options.signal?.removeEventListener('abort', cancel);
+      }
+    },
+  };
+}

@@ -1,0 +1,265 @@
+// The app's state (Svelte 5 runes): the study being edited, what the main side last said about
+// it, and the run. Screens read and change it; every call to the main side goes through the api
+// client. Logic worth testing lives in the plain modules beside this one.
+
+import type {
+  CheckReport, DataPreview, EvaluateReport, ProgramCheck, ProgressEvent, SampleInfo, TryUnitReport, WorkspaceInfo, WorkspaceRecent,
+} from '../../main/contract/api.ts';
+import type { Problem } from '../../main/contract/program.ts';
+import type { Results } from '../../main/contract/results.ts';
+import type { ApiClient } from './api-client.ts';
+import { blankStudy, normalizeDraft, slug, tidyProgram, toStudyFile, type StudyDraft } from './draft.ts';
+import { pathStatus, type StepId } from './steps.ts';
+
+export type RunState = 'idle' | 'running' | 'done' | 'failed' | 'cancelled';
+
+const MEMO_EXT = /\.(pdf|docx|html|xlsx)$/i;
+const dirOf = (p: string) => p.replace(/[\\/][^\\/]*$/, '') || '/';
+const join = (dir: string, ...parts: string[]) => [dir.replace(/[\\/]+$/, ''), ...parts].join(dir.includes('\\') && !dir.includes('/') ? '\\' : '/');
+const stamp = () => new Date().toISOString().replace(/[-:]/g, '').replace(/\..*$/, '').replace('T', '-');
+
+export class AppState {
+  step = $state<StepId>('start');
+  info = $state<WorkspaceInfo | null>(null);
+  startupProblems = $state<Problem[]>([]);
+  samples = $state<SampleInfo[]>([]);
+  recent = $state<WorkspaceRecent>({ studies: [], runs: [] });
+
+  draft = $state<StudyDraft | null>(null);
+  /** Folder the draft's relative data paths are relative to. */
+  baseDir = $state<string | null>(null);
+  /** The study file the draft came from or was last saved to. */
+  studyPath = $state<string | null>(null);
+  fromSample = $state(false);
+  openProblems = $state<Problem[]>([]);
+  busy = $state<string | null>(null);
+  notice = $state('');
+
+  programCheck = $state<ProgramCheck | null>(null);
+  tryReport = $state<TryUnitReport | null>(null);
+  tryProblems = $state<Problem[]>([]);
+
+  preview = $state<DataPreview | null>(null);
+  joinPreviews = $state<Record<string, DataPreview>>({});
+  previewProblems = $state<Problem[]>([]);
+  dataReport = $state<CheckReport | null>(null);
+  dataProblems = $state<Problem[]>([]);
+  dataReportKey = $state('');
+
+  runState = $state<RunState>('idle');
+  progress = $state<ProgressEvent | null>(null);
+  runProblems = $state<Problem[]>([]);
+  report = $state<EvaluateReport | null>(null);
+  results = $state<Results | null>(null);
+  memoFiles = $state<string[]>([]);
+  memoProblems = $state<Problem[]>([]);
+  /** The study file the last run in this session used (the workspace copy). */
+  runStudyPath = $state<string | null>(null);
+  private controller: AbortController | null = null;
+
+  constructor(readonly api: ApiClient) {}
+
+  get status() {
+    return pathStatus({
+      draft: this.draft,
+      programCheck: this.programCheck,
+      dataReport: this.dataReport,
+      dataReportCurrent: this.draft !== null && this.dataReportKey === this.draftKey(),
+      run: this.report,
+      memoFiles: this.memoFiles,
+      memoFormatsAvailable: (this.info?.memoFormats.length ?? 0) > 0,
+    });
+  }
+
+  draftKey(): string {
+    return this.draft ? JSON.stringify(toStudyFile($state.snapshot(this.draft) as StudyDraft)) : '';
+  }
+
+  /** Resolve a data path of the draft for the main side (relative paths are relative to baseDir). */
+  dataPath(p: string): string {
+    if (/^([a-zA-Z]:[\\/]|[\\/])/.test(p) || !this.baseDir) return p;
+    return join(this.baseDir, p);
+  }
+
+  async init(): Promise<void> {
+    const info = await this.api.call('workspace.info', {});
+    if (!info.ok) { this.startupProblems = info.error.problems; return; }
+    this.info = info.value;
+    const samples = await this.api.call('samples.list', {});
+    if (samples.ok) this.samples = samples.value.samples;
+    await this.refreshRecent();
+  }
+
+  async refreshRecent(): Promise<void> {
+    const r = await this.api.call('workspace.recent', {});
+    if (r.ok) this.recent = r.value;
+  }
+
+  private resetDerived(): void {
+    this.programCheck = null; this.tryReport = null; this.tryProblems = [];
+    this.preview = null; this.joinPreviews = {}; this.previewProblems = [];
+    this.dataReport = null; this.dataProblems = []; this.dataReportKey = '';
+    this.runState = 'idle'; this.progress = null; this.runProblems = []; this.report = null; this.results = null;
+    this.memoFiles = []; this.memoProblems = []; this.runStudyPath = null;
+  }
+
+  newStudy(): void {
+    this.resetDerived();
+    this.draft = blankStudy();
+    this.baseDir = null; this.studyPath = null; this.fromSample = false; this.openProblems = [];
+    this.step = 'rule';
+  }
+
+  async openStudy(path: string, fromSample = false): Promise<Problem[]> {
+    this.busy = 'Opening the study…';
+    const r = await this.api.call('study.open', { path });
+    this.busy = null;
+    if (!r.ok) return r.error.problems;
+    this.resetDerived();
+    this.draft = normalizeDraft(r.value.study);
+    this.baseDir = r.value.baseDir;
+    this.studyPath = fromSample ? null : r.value.path;
+    this.fromSample = fromSample;
+    this.openProblems = r.value.problems;
+    this.notice = `Opened ${this.draft.title || r.value.path}${r.value.problems.length ? ` — ${r.value.problems.length} problem(s) to fix` : ''}.`;
+    this.step = 'rule';
+    void this.refreshRecent();
+    return [];
+  }
+
+  async saveStudy(path: string): Promise<Problem[]> {
+    if (!this.draft) return [];
+    const r = await this.api.call('study.save', { path, study: toStudyFile($state.snapshot(this.draft) as StudyDraft), ...(this.baseDir ? { baseDir: this.baseDir } : {}) });
+    if (!r.ok) return r.error.problems;
+    // Reopen what was written, so relative data paths are relative to the new folder.
+    const reopened = await this.api.call('study.open', { path: r.value.path });
+    if (reopened.ok) { this.draft = normalizeDraft(reopened.value.study); this.baseDir = reopened.value.baseDir; }
+    this.studyPath = r.value.path;
+    this.fromSample = false;
+    this.notice = `Saved the study to ${r.value.path}.`;
+    void this.refreshRecent();
+    return [];
+  }
+
+  /** Where "Save" writes by default: the file it came from, else the workspace's studies folder. */
+  defaultSavePath(): string {
+    if (this.studyPath) return this.studyPath;
+    const dir = this.info?.studiesDir ?? '';
+    return join(dir, `${slug(this.draft?.title ?? '')}.json`);
+  }
+
+  async checkProgram(): Promise<void> {
+    if (!this.draft) return;
+    const program = tidyProgram($state.snapshot(this.draft.program) as StudyDraft['program']);
+    const r = await this.api.call('program.check', { program });
+    if (r.ok) this.programCheck = r.value;
+  }
+
+  async tryUnit(values: Record<string, string>): Promise<void> {
+    if (!this.draft) return;
+    const program = tidyProgram($state.snapshot(this.draft.program) as StudyDraft['program']);
+    const r = await this.api.call('program.tryUnit', { program, values });
+    if (r.ok) { this.tryReport = r.value; this.tryProblems = r.value.problems; }
+    else { this.tryReport = null; this.tryProblems = r.error.problems; }
+  }
+
+  async loadPreview(): Promise<void> {
+    const d = this.draft;
+    if (!d || !d.data.path.trim()) return;
+    this.busy = 'Reading the data file…';
+    const program = tidyProgram($state.snapshot(d.program) as StudyDraft['program']);
+    const r = await this.api.call('data.preview', {
+      path: this.dataPath(d.data.path.trim()), program,
+      ...(d.data.sheet ? { sheet: d.data.sheet } : {}), ...(d.data.headerRow ? { headerRow: d.data.headerRow } : {}),
+    }, { onProgress: (p) => { this.progress = p; } });
+    const joins: Record<string, DataPreview> = {};
+    const problems: Problem[] = r.ok ? [] : r.error.problems;
+    for (const [i, j] of (d.data.join ?? []).entries()) {
+      const jr = await this.api.call('data.preview', { path: this.dataPath(j.path), ...(j.sheet ? { sheet: j.sheet } : {}), ...(j.headerRow ? { headerRow: j.headerRow } : {}) });
+      if (jr.ok) joins[j.path] = jr.value;
+      else problems.push(...jr.error.problems.map((p) => ({ ...p, path: `data.join[${i}]` })));
+    }
+    this.busy = null;
+    this.progress = null;
+    this.preview = r.ok ? r.value : null;
+    this.joinPreviews = joins;
+    this.previewProblems = problems;
+    if (r.ok && !d.data.sheet && r.value.sheet) d.data.sheet = r.value.sheet;
+  }
+
+  async checkData(): Promise<void> {
+    if (!this.draft) return;
+    this.busy = 'Checking the data against the study…';
+    const key = this.draftKey();
+    const r = await this.api.call('data.check', { study: toStudyFile($state.snapshot(this.draft) as StudyDraft), ...(this.baseDir ? { baseDir: this.baseDir } : {}) }, { onProgress: (p) => { this.progress = p; } });
+    this.busy = null;
+    this.progress = null;
+    this.dataReportKey = key;
+    if (r.ok) { this.dataReport = r.value; this.dataProblems = []; }
+    else { this.dataReport = null; this.dataProblems = r.error.problems; }
+  }
+
+  async run(): Promise<void> {
+    const d = this.draft;
+    const info = this.info;
+    if (!d || !info) return;
+    this.runProblems = [];
+    this.runState = 'running';
+    this.progress = { stage: 'saving', done: 0, total: 1 };
+    const name = `${slug(d.title)}`;
+    // The study as run is kept in the workspace, next to the run's files; the analyst's own file is changed only by Save.
+    const studyPath = join(info.studiesDir, name, 'study.json');
+    const saved = await this.api.call('study.save', { path: studyPath, study: toStudyFile($state.snapshot(d) as StudyDraft), ...(this.baseDir ? { baseDir: this.baseDir } : {}) });
+    if (!saved.ok) { this.runState = 'failed'; this.runProblems = saved.error.problems; return; }
+    this.runStudyPath = saved.value.path;
+    this.controller = new AbortController();
+    const r = await this.api.call('study.evaluate', {
+      studyPath: saved.value.path, outDir: join(info.runsDir, `${name}-${stamp()}`), formats: [...info.memoFormats], workspacePath: info.workspacePath,
+    }, { onProgress: (p) => { this.progress = p; }, signal: this.controller.signal });
+    this.controller = null;
+    this.progress = null;
+    if (!r.ok) { this.runState = r.error.kind === 'cancelled' ? 'cancelled' : 'failed'; this.runProblems = r.error.problems; return; }
+    this.report = r.value;
+    this.results = r.value.results;
+    this.memoFiles = r.value.files.filter((f) => MEMO_EXT.test(f));
+    this.runState = 'done';
+    this.notice = `The run finished: ${r.value.results.study.rowsUsed.toLocaleString('en-US')} units used. Files are in ${r.value.outDir}.`;
+    void this.refreshRecent();
+  }
+
+  cancelRun(): void {
+    this.controller?.abort();
+  }
+
+  /** Write the memo again in another folder, in the formats chosen. */
+  async writeMemo(formats: Array<'pdf' | 'html' | 'docx' | 'xlsx'>, outDir: string): Promise<void> {
+    const info = this.info;
+    const d = this.draft;
+    if (!info || !d) return;
+    this.memoProblems = [];
+    this.busy = 'Writing the memo…';
+    const studyPath = this.runStudyPath;
+    if (!studyPath) { this.busy = null; this.memoProblems = [{ path: '', message: 'Run the study in this window first; the memo is written from a run.' }]; return; }
+    const r = await this.api.call('study.evaluate', { studyPath, outDir, formats }, { onProgress: (p) => { this.progress = p; } });
+    this.busy = null;
+    this.progress = null;
+    if (!r.ok) { this.memoProblems = r.error.problems; return; }
+    this.memoFiles = r.value.files.filter((f) => MEMO_EXT.test(f));
+    this.notice = `Wrote ${this.memoFiles.length} memo file(s) to ${r.value.outDir}.`;
+  }
+
+  async openRecordedRun(runId: number): Promise<Problem[]> {
+    const r = await this.api.call('workspace.run', { runId });
+    if (!r.ok) return r.error.problems;
+    this.resetDerived();
+    this.draft = normalizeDraft(r.value.study);
+    this.baseDir = null; this.studyPath = null; this.fromSample = false; this.openProblems = [];
+    this.results = r.value.results;
+    this.report = { outDir: '', files: [], results: r.value.results, runId: r.value.runId, timings: {} };
+    this.runState = 'done';
+    this.step = 'evidence';
+    return [];
+  }
+}
+
+export { dirOf };

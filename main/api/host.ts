@@ -1,0 +1,41 @@
+// What the host of an app call provides besides progress and cancellation: which host it is,
+// the workspace folder (chosen by the host, never by the renderer), and native dialogs where
+// the host has them (Electron). Browser mode and the CLI have no dialogs.
+
+import { join } from 'node:path';
+import type { AppHost, DialogArgs } from '../contract/api.ts';
+import type { CallContext } from './context.ts';
+
+export interface HostDialogs {
+  openFile(args: DialogArgs): Promise<string | null>;
+  saveFile(args: DialogArgs): Promise<string | null>;
+}
+
+export interface HostContext extends CallContext {
+  host?: AppHost;
+  /** Folder of the workspace: the study files the app saves, run folders, the workspace file. */
+  workspaceDir?: string;
+  dialogs?: HostDialogs;
+}
+
+export interface WorkspaceLayout {
+  dir: string;
+  /** The better-sqlite3 workspace file (studies, datasets, runs). */
+  workspacePath: string;
+  runsDir: string;
+  studiesDir: string;
+  /** Recently opened study files (a small JSON list). */
+  recentPath: string;
+}
+
+export function workspaceLayout(dir: string): WorkspaceLayout {
+  return {
+    dir,
+    workspacePath: join(dir, 'workspace.fenceline'),
+    runsDir: join(dir, 'runs'),
+    studiesDir: join(dir, 'studies'),
+    recentPath: join(dir, 'recent.json'),
+  };
+}
+
+export const NO_WORKSPACE = 'This window has no workspace folder (the app was started without one). Restart it with npm start.';

@@ -1,0 +1,214 @@
+// Browser mode: the renderer served on 127.0.0.1 with the api over HTTP. It binds to loopback
+// only, and every /api/ request must carry the random token printed once at launch in the
+// X-Fenceline-Token header (401 without it, 403 with a wrong one), so no other web page and no
+// other local user can call the api. The page is served with a strict Content-Security-Policy.
+// No analysis logic lives here: requests become callApi calls (main/api.ts).
+
+import { randomBytes, timingSafeEqual } from 'node:crypto';
+import { readFileSync, statSync } from 'node:fs';
+import { createServer, type IncomingMessage, type Server, type ServerResponse } from 'node:http';
+import type { AddressInfo } from 'node:net';
+import { homedir } from 'node:os';
+import { extname, join, normalize, resolve, sep } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { parseArgs } from 'node:util';
+import buildConfig from '../electron.config.ts';
+import type { ApiResult } from './contract/api.ts';
+import { callApi } from './api.ts';
+import { JobTable } from './api/jobs.ts';
+
+export const TOKEN_HEADER = 'x-fenceline-token';
+const MAX_BODY_BYTES = 20 * 2 ** 20;
+const ROOT = fileURLToPath(new URL('..', import.meta.url));
+
+const TYPES: Record<string, string> = {
+  '.html': 'text/html; charset=utf-8', '.js': 'text/javascript; charset=utf-8', '.css': 'text/css; charset=utf-8',
+  '.svg': 'image/svg+xml', '.png': 'image/png', '.woff2': 'font/woff2', '.json': 'application/json', '.ico': 'image/x-icon',
+};
+
+export interface ServeOptions {
+  port?: number;
+  /** Folder of the built renderer (vite build output). */
+  rendererDir?: string;
+  workspaceDir?: string;
+}
+
+export interface RunningServer {
+  url: string;
+  port: number;
+  token: string;
+  server: Server;
+  close(): Promise<void>;
+}
+
+/** The per-user data folder (the Electron shell uses its own user-data folder). */
+export function defaultWorkspaceDir(): string {
+  if (process.platform === 'win32') return join(process.env.APPDATA ?? join(homedir(), 'AppData', 'Roaming'), 'Fenceline');
+  if (process.platform === 'darwin') return join(homedir(), 'Library', 'Application Support', 'Fenceline');
+  return join(process.env.XDG_DATA_HOME ?? join(homedir(), '.local', 'share'), 'fenceline');
+}
+
+const FAULT: ApiResult<never> = {
+  ok: false,
+  error: { kind: 'input', problems: [{ path: '', message: 'Something went wrong inside Fenceline. The details were written in the terminal window; please keep them for a bug report.' }] },
+};
+
+function securityHeaders(res: ServerResponse): void {
+  res.setHeader('Content-Security-Policy', buildConfig.contentSecurityPolicy);
+  res.setHeader('X-Content-Type-Options', 'nosniff');
+  res.setHeader('Referrer-Policy', 'no-referrer');
+  res.setHeader('Cross-Origin-Opener-Policy', 'same-origin');
+  res.setHeader('Cross-Origin-Resource-Policy', 'same-origin');
+  res.setHeader('X-Frame-Options', 'DENY');
+  res.setHeader('Cache-Control', 'no-store');
+}
+
+function send(res: ServerResponse, status: number, body: unknown): void {
+  const text = JSON.stringify(body);
+  res.writeHead(status, { 'Content-Type': 'application/json; charset=utf-8', 'Content-Length': Buffer.byteLength(text) });
+  res.end(text);
+}
+
+function readBody(req: IncomingMessage): Promise<unknown> {
+  return new Promise((done, fail) => {
+    const chunks: Buffer[] = [];
+    let size = 0;
+    req.on('data', (c: Buffer) => {
+      size += c.length;
+      if (size > MAX_BODY_BYTES) { fail(new RangeError('too large')); req.destroy(); return; }
+      chunks.push(c);
+    });
+    req.on('end', () => {
+      try { done(chunks.length ? JSON.parse(Buffer.concat(chunks).toString('utf8')) : {}); } catch { fail(new SyntaxError('not JSON')); }
+    });
+    req.on('error', fail);
+  });
+}
+
+function tokenMatches(given: string | string[] | undefined, token: Buffer): boolean {
+  if (typeof given !== 'string') return false;
+  const b = Buffer.from(given, 'utf8');
+  return b.length === token.length && timingSafeEqual(b, token);
+}
+
+function serveFile(res: ServerResponse, rendererDir: string, urlPath: string): void {
+  let rel: string;
+  try { rel = decodeURIComponent(urlPath.split('?')[0]!); } catch { res.writeHead(400).end(); return; }
+  if (rel === '/' || rel === '') rel = '/index.html';
+  const full = normalize(join(rendererDir, rel));
+  if (full !== rendererDir && !full.startsWith(rendererDir + sep)) { res.writeHead(404).end(); return; }
+  let body: Buffer;
+  try {
+    if (!statSync(full).isFile()) throw new Error('not a file');
+    body = readFileSync(full);
+  } catch {
+    if (rel === '/index.html') {
+      res.writeHead(503, { 'Content-Type': 'text/plain; charset=utf-8' });
+      res.end('The app\'s screens are not built yet. Stop this server, run "npm run build:app", then "npm run serve" again.\n');
+      return;
+    }
+    res.writeHead(404, { 'Content-Type': 'text/plain; charset=utf-8' }).end('Not found.\n');
+    return;
+  }
+  res.writeHead(200, { 'Content-Type': TYPES[extname(full).toLowerCase()] ?? 'application/octet-stream', 'Content-Length': body.length });
+  res.end(body);
+}
+
+export async function startServer(options: ServeOptions = {}): Promise<RunningServer> {
+  const tokenText = randomBytes(32).toString('base64url');
+  const token = Buffer.from(tokenText, 'utf8');
+  const rendererDir = resolve(options.rendererDir ?? join(ROOT, buildConfig.outDir, 'renderer'));
+  const workspaceDir = resolve(options.workspaceDir ?? defaultWorkspaceDir());
+  const host = { host: 'browser' as const, workspaceDir };
+  const fault = (e: unknown): ApiResult<unknown> => { console.error('Fenceline internal fault:', e); return FAULT; };
+  const jobs = new JobTable(callApi, host, fault);
+  let port = 0;
+
+  const server = createServer((req, res) => {
+    securityHeaders(res);
+    const url = req.url ?? '/';
+    // Only this server's own address: a page elsewhere that rebinds a name to 127.0.0.1 is refused.
+    const hostHeader = req.headers.host ?? '';
+    if (hostHeader !== `127.0.0.1:${port}` && hostHeader !== `localhost:${port}`) { send(res, 403, { error: 'wrong host' }); return; }
+    if (!url.startsWith('/api/')) {
+      if (req.method !== 'GET' && req.method !== 'HEAD') { res.writeHead(405).end(); return; }
+      serveFile(res, rendererDir, url);
+      return;
+    }
+    const given = req.headers[TOKEN_HEADER];
+    if (given === undefined) { send(res, 401, { error: 'This request has no Fenceline token.' }); return; }
+    if (!tokenMatches(given, token)) { send(res, 403, { error: 'This request has the wrong Fenceline token.' }); return; }
+    const origin = req.headers.origin;
+    if (origin !== undefined && origin !== `http://127.0.0.1:${port}` && origin !== `http://localhost:${port}`) { send(res, 403, { error: 'wrong origin' }); return; }
+    if (req.method !== 'POST') { send(res, 405, { error: 'Use POST.' }); return; }
+    void handleApi(req, res, url.split('?')[0]!);
+  });
+
+  async function handleApi(req: IncomingMessage, res: ServerResponse, path: string): Promise<void> {
+    let body: unknown;
+    try { body = await readBody(req); } catch (e) {
+      send(res, e instanceof RangeError ? 413 : 400, { ok: false, error: { kind: 'input', problems: [{ path: '', message: e instanceof RangeError ? 'The request is too large.' : 'The request is not JSON.' }] } });
+      return;
+    }
+    const b = (body ?? {}) as { method?: unknown; args?: unknown };
+    if (path === '/api/call') {
+      try { send(res, 200, await callApi(b.method, b.args, host)); } catch (e) { send(res, 500, fault(e)); }
+      return;
+    }
+    if (path === '/api/jobs') { send(res, 200, { jobId: jobs.start(b.method, b.args) }); return; }
+    const m = /^\/api\/jobs\/([0-9a-f]{24})(\/cancel)?$/.exec(path);
+    if (m) {
+      const id = m[1]!;
+      if (m[2]) { const cancelled = jobs.cancel(id); send(res, cancelled ? 200 : 404, { cancelled }); return; }
+      const view = jobs.view(id);
+      send(res, view ? 200 : 404, view ?? { error: 'No such job.' });
+      return;
+    }
+    send(res, 404, { error: 'No such api route.' });
+  }
+
+  await new Promise<void>((ready, fail) => {
+    server.once('error', fail);
+    server.listen(options.port ?? 0, '127.0.0.1', () => ready());
+  });
+  port = (server.address() as AddressInfo).port;
+  return {
+    url: `http://127.0.0.1:${port}/#token=${tokenText}`,
+    port,
+    token: tokenText,
+    server,
+    close: () => new Promise<void>((done) => { jobs.cancelAll(); server.close(() => done()); server.closeAllConnections(); }),
+  };
+}
+
+function usage(message: string): never {
+  console.error(`${message}\nUsage: npm run serve -- [--port N] [--workspace FOLDER]\n  --port N          listen on 127.0.0.1:N (0 or absent: any free port)\n  --workspace DIR   where studies, runs and the workspace file are kept (default: ${defaultWorkspaceDir()})`);
+  process.exit(2);
+}
+
+async function main(): Promise<void> {
+  let values;
+  try {
+    ({ values } = parseArgs({ options: { port: { type: 'string' }, workspace: { type: 'string' }, renderer: { type: 'string' } }, allowPositionals: false }));
+  } catch (e) {
+    usage((e as Error).message);
+  }
+  const port = values.port === undefined ? 0 : Number(values.port);
+  if (!Number.isInteger(port) || port < 0 || port > 65535) usage(`--port must be a whole number from 0 to 65535; found "${values.port}".`);
+  let running: RunningServer;
+  try {
+    running = await startServer({ port, ...(values.workspace ? { workspaceDir: values.workspace } : {}), ...(values.renderer ? { rendererDir: values.renderer } : {}) });
+  } catch (e) {
+    const code = (e as NodeJS.ErrnoException).code;
+    console.error(code === 'EADDRINUSE' ? `Port ${port} is in use by another program. Choose another with --port, or --port 0 for any free port.` : `Browser mode could not start (${code ?? (e as Error).message}).`);
+    process.exit(1);
+  }
+  // The one line on stdout: the address to open, token included (in the fragment, which browsers do not send).
+  process.stdout.write(`${running.url}\n`);
+  console.error('Fenceline browser mode: open the address above in a browser on this computer. Press Ctrl+C to stop.');
+  const stop = () => { void running.close().then(() => process.exit(0)); };
+  process.on('SIGINT', stop);
+  process.on('SIGTERM', stop);
+}
+
+if (process.argv[1] && resolve(process.argv[1]) === fileURLToPath(import.meta.url)) void main();

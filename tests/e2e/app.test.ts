@@ -1,0 +1,147 @@
+// The whole job in browser mode, as a first-time analyst does it: open a sample program, change
+// a threshold and see the reading change, bring in its workbook, map columns, run, read an
+// estimate, export the memo and find its files on disk; a damaged workbook shows its message;
+// the api refuses calls without the launch token. Screenshots of every screen go to
+// tests/artifacts/ (looked at by hand; they assert nothing).
+
+import { existsSync, statSync, writeFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { openSession, shot, type Session } from './browser.ts';
+
+let s: Session;
+beforeAll(async () => { s = await openSession(); });
+afterAll(async () => { await s?.close(); });
+
+describe('browser mode guards its api with the launch token', () => {
+  it('answers 401 without the token, 403 with a wrong one, and 200 with the right one', async () => {
+    const base = `http://127.0.0.1:${s.server.port}`;
+    const body = JSON.stringify({ method: 'samples.list', args: {} });
+    const none = await fetch(`${base}/api/call`, { method: 'POST', body });
+    expect(none.status).toBe(401);
+    const wrong = await fetch(`${base}/api/call`, { method: 'POST', body, headers: { 'X-Fenceline-Token': 'not-the-token' } });
+    expect(wrong.status).toBe(403);
+    const inQuery = await fetch(`${base}/api/call?token=${s.server.token}`, { method: 'POST', body });
+    expect(inQuery.status).toBe(401);
+    const right = await fetch(`${base}/api/call`, { method: 'POST', body, headers: { 'X-Fenceline-Token': s.server.token } });
+    expect(right.status).toBe(200);
+    expect(((await right.json()) as { ok: boolean }).ok).toBe(true);
+  });
+  it('serves the page with a Content-Security-Policy that forbids inline scripts and remote content', async () => {
+    const r = await fetch(`http://127.0.0.1:${s.server.port}/`);
+    const csp = r.headers.get('content-security-policy') ?? '';
+    expect(csp).toMatch(/default-src 'none'/);
+    expect(csp).toMatch(/script-src 'self'(;|$)/);
+    expect(csp).not.toMatch(/unsafe-inline|unsafe-eval|https?:/);
+  });
+});
+
+describe('the guided path, start to memo', () => {
+  it('opens a sample, edits the rule, maps the data, runs, reads the evidence and exports the memo', async () => {
+    const { page } = s;
+    await page.goto(s.server.url);
+    await page.getByRole('heading', { name: 'Start' }).waitFor();
+    await page.getByRole('button', { name: /Winter energy credit/ }).waitFor();
+    await shot(page, '01-start');
+
+    // Rule: the age threshold 65 → 67 changes the plain-language reading.
+    await page.getByRole('button', { name: /Winter energy credit/ }).click();
+    const reading = page.getByTestId('reading');
+    await expect.poll(() => reading.textContent(), { timeout: 10_000 }).toMatch(/at least 65/);
+    const ageLimit = page.locator('input[id="program-rule-all-1-any-0--limit"]');
+    await ageLimit.fill('67');
+    await expect.poll(() => reading.textContent(), { timeout: 10_000 }).toMatch(/at least 67/);
+    expect(await reading.textContent()).not.toMatch(/at least 65/);
+    // Try a unit: 20,000 USD, 2 people, oldest 70 → eligible.
+    await page.getByLabel('Annual household income (USD)', { exact: true }).fill('20,000');
+    await page.getByLabel('People in household', { exact: true }).fill('2');
+    await page.getByLabel('Age of oldest member (years)', { exact: true }).fill('70');
+    await expect.poll(() => page.getByTestId('try-verdict').textContent(), { timeout: 10_000 }).toMatch(/Eligible/);
+    // A broken limit shows its message next to the field, and the reading waits.
+    await ageLimit.fill('sixty');
+    await expect.poll(() => reading.textContent(), { timeout: 10_000 }).toMatch(/to fix/);
+    await expect.poll(async () => (await ageLimit.getAttribute('aria-invalid')) ?? '', { timeout: 10_000 }).toBe('true');
+    await shot(page, '02-rule-with-problem');
+    await ageLimit.fill('67');
+    await expect.poll(() => reading.textContent(), { timeout: 10_000 }).toMatch(/at least 67/);
+    await shot(page, '02-rule');
+
+    // Data: bring in the workbook by its path, see the preview, map columns, check.
+    await page.getByRole('button', { name: /^○?\s*Data/ }).click();
+    const pathBox = page.getByLabel(/Workbook \(\.xlsx\) or CSV file/);
+    const workbook = join(import.meta.dirname, '..', '..', 'sample-programs', 'winter-credit', 'applicants.xlsx');
+    await pathBox.fill(workbook);
+    await page.getByRole('button', { name: 'Open', exact: true }).first().click();
+    await page.getByRole('heading', { name: 'First rows' }).waitFor({ timeout: 30_000 });
+    const renter = page.getByLabel('Role of column RENTER');
+    await renter.selectOption({ label: 'Not used' });
+    await renter.selectOption({ label: 'Covariate (for balance checks)' });
+    expect(await renter.inputValue()).toBe('covariate');
+    await page.getByRole('button', { name: 'Check the data' }).click();
+    await expect.poll(() => page.getByTestId('data-report').textContent(), { timeout: 60_000 }).toMatch(/will be used/);
+    await shot(page, '03-data');
+
+    // Run: progress, then done.
+    await page.getByRole('button', { name: /^○?\s*Run/ }).click();
+    await shot(page, '04-run-settings');
+    await page.getByRole('button', { name: 'Run the study' }).click();
+    await page.locator('progress').waitFor({ timeout: 10_000 }).catch(() => {});
+    await shot(page, '04-run-progress');
+    await page.getByTestId('run-done').waitFor({ timeout: 180_000 });
+    await shot(page, '04-run-done');
+
+    // Evidence: an estimate with its interval.
+    await page.getByRole('button', { name: 'Read the evidence' }).click();
+    const verdict = page.getByTestId('effect-verdict').first();
+    await verdict.waitFor();
+    expect(await verdict.textContent()).toMatch(/changed .* by −?\d/);
+    const estimates = await page.getByTestId('estimate').allTextContents();
+    expect(estimates.some((e) => /^−?\d/.test(e))).toBe(true);
+    await page.waitForTimeout(300);
+    await shot(page, '05-evidence');
+
+    // Map.
+    await page.getByRole('button', { name: /^○?✓?\s*Map/ }).click();
+    await page.locator('canvas').first().waitFor({ timeout: 60_000 });
+    await page.waitForTimeout(300);
+    await shot(page, '06-map');
+
+    // Memo: the files the run wrote, on disk.
+    await page.getByRole('button', { name: /^○?✓?\s*Memo/ }).click();
+    await page.getByRole('heading', { name: 'Memo', exact: true, level: 1 }).waitFor();
+    const info = (await (await fetch(`http://127.0.0.1:${s.server.port}/api/call`, {
+      method: 'POST', headers: { 'X-Fenceline-Token': s.server.token }, body: JSON.stringify({ method: 'workspace.info', args: {} }),
+    })).json()) as { value: { memoFormats: string[] } };
+    if (info.value.memoFormats.length === 0) {
+      console.warn('Memo files not checked: study.evaluate reports that this version writes no memo formats.');
+      await shot(page, '07-memo');
+      return;
+    }
+    const listed = await page.getByTestId('memo-files').locator('li .hint').allTextContents();
+    expect(listed.length).toBe(info.value.memoFormats.length);
+    for (const f of listed) expect(existsSync(f) && statSync(f).size > 0, f).toBe(true);
+    const exportDir = join(s.scratch, 'exported memo');
+    await page.locator('#memo-dir').fill(exportDir);
+    await page.getByRole('button', { name: 'Write the memo files' }).click();
+    await expect.poll(() => existsSync(join(exportDir, 'memo.pdf')), { timeout: 120_000 }).toBe(true);
+    for (const name of ['memo.html', 'memo.docx', 'tables.xlsx']) expect(existsSync(join(exportDir, name)), name).toBe(true);
+    await page.locator('article.memo h1, article.memo h2').first().waitFor({ timeout: 30_000 });
+    await shot(page, '07-memo');
+    expect(s.pageErrors.filter((e) => /Content Security Policy|Refused to/.test(e) && !/style/i.test(e))).toEqual([]);
+  });
+
+  it('a damaged workbook shows its message next to the file field', async () => {
+    const { page } = s;
+    const bad = join(s.scratch, 'applicants.xlsx');
+    writeFileSync(bad, 'APPLICANT_ID,HH_INCOME\nA-1,100\n');
+    await page.getByRole('button', { name: /^○?✓?\s*Data/ }).click();
+    const pathBox = page.getByLabel(/Workbook \(\.xlsx\) or CSV file/);
+    await pathBox.fill(bad);
+    await page.getByRole('button', { name: 'Open', exact: true }).first().click();
+    const message = page.locator('#data-path-msg li').first();
+    await message.waitFor({ timeout: 30_000 });
+    expect(await message.textContent()).toMatch(/named like an Excel workbook but holds plain text/);
+    expect(await pathBox.getAttribute('aria-invalid')).toBe('true');
+    await shot(page, '08-data-bad-workbook');
+  });
+});
