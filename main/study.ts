@@ -2,7 +2,7 @@
 // Each stage is a plain function of its inputs (plus the seed); only reading the data touches
 // the file system. Same study, data and seed → the same results, byte for byte.
 
-import { isAbsolute, resolve } from 'node:path';
+import { basename, isAbsolute, resolve } from 'node:path';
 import type { Study } from './contract/study.ts';
 import type { ExclusionReason, Results, Warning } from './contract/results.ts';
 import { readJoins } from './data/join.ts';
@@ -138,7 +138,8 @@ export async function runStudy(study: Study, options: RunOptions): Promise<Check
   const warnings: Warning[] = [];
   const clusters = data.cluster ? data.cluster.codes : undefined;
   const offer: NamedColumn = { name: study.columns.decision && prepared.instrument.source === 'recorded-decision' ? study.columns.decision : 'offer (formula)', values: z };
-  const treatmentName = typeof study.columns.treatment === 'string' ? study.columns.treatment : study.columns.treatment ? `listed in ${study.columns.treatment.listedIn}` : null;
+  // a "listed in" treatment is named by the file's name only (a saved study may hold an absolute path)
+  const treatmentName = typeof study.columns.treatment === 'string' ? study.columns.treatment : study.columns.treatment ? `the benefit (as listed in ${basename(study.columns.treatment.listedIn)})` : null;
   const treatment: NamedColumn | undefined = data.treatment && treatmentName ? { name: treatmentName, values: data.treatment } : undefined;
   const controls: NamedColumn[] = (study.columns.controls ?? []).map((name, i) => ({ name, values: data.controls[i]! }));
   const covariates: NamedColumn[] = (study.columns.covariates ?? []).map((name, i) => ({ name, values: data.covariates[i]! }));

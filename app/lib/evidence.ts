@@ -44,9 +44,11 @@ export function instrumentVerdict(r: Results): Verdict {
   const known = stages.filter((s): s is { delta: number; F: number } => s.F !== null);
   if (known.length === 0) return neutral(r.estimand.kind === 'offer' ? 'No take-up column: the estimate is the effect of the offer itself, so there is no first stage.' : 'The first stage could not be estimated.');
   const weakest = known.reduce((a, b) => (b.F < a.F ? b : a));
-  return weakest.F >= 10
-    ? good(`Strong: the offer clearly moves take-up (smallest first-stage F = ${num(weakest.F)} at δ = ${weakest.delta}; 10 or more is strong).`)
-    : caution(`Weak at δ = ${weakest.delta} (first-stage F = ${num(weakest.F)}, below 10): rely on the Anderson–Rubin and tF intervals there.`);
+  // thresholds: F ≥ 104.7 makes the usual ±1.96 interval valid (Lee, McCrary, Moreira & Porter 2022);
+  // F ≥ 10 is the rule of thumb of Staiger & Stock (1997), under which the tF interval is the one to read
+  if (weakest.F >= 104.7) return good(`Strong: the offer clearly moves take-up (smallest first-stage F = ${num(weakest.F)} at δ = ${weakest.delta}; above 104.7 the usual interval is reliable).`);
+  if (weakest.F >= 10) return good(`Adequate: the offer moves take-up (smallest first-stage F = ${num(weakest.F)} at δ = ${weakest.delta}, above the usual threshold of 10); below F = 104.7 read the tF interval, which widens the usual one to stay reliable.`);
+  return caution(`Weak at δ = ${weakest.delta} (first-stage F = ${num(weakest.F)}, below 10): rely on the Anderson–Rubin and tF intervals there.`);
 }
 
 export function balanceVerdict(r: Results): Verdict {
