@@ -1,7 +1,7 @@
 // Build description of the desktop app: which entry points are bundled for which process.
-// The Electron shell itself (main/electron/) arrives with the desktop app; this file is the
-// single place that names the entries, so the build script, the packaged app and browser mode
-// agree on them. Plain data, type-checked with the rest of the project.
+// This file is the single place that names the entries, so the build script
+// (scripts/build-electron.mjs), the packaged app and browser mode agree on them. Plain data,
+// type-checked with the rest of the project.
 
 export interface BuildEntry {
   /** Source file, relative to the project root. */
@@ -19,6 +19,11 @@ export interface ElectronBuildConfig {
   entries: BuildEntry[];
   /** Native modules that must be rebuilt against Electron's Node ABI when packaging. */
   nativeModules: string[];
+  /**
+   * Packages left out of the bundles and loaded from node_modules at run time: Electron itself,
+   * native modules, and packages that read their own files at run time.
+   */
+  external: string[];
   /** Content-Security-Policy of the renderer: no remote content, no eval. */
   contentSecurityPolicy: string;
 }
@@ -30,10 +35,15 @@ const config: ElectronBuildConfig = {
   entries: [
     { entry: 'main/electron/main.ts', out: 'main.js', target: 'main' },
     { entry: 'main/electron/preload.ts', out: 'preload.js', target: 'preload' },
+    // The propensity pool (main/design/parallel/pool.ts) and the job runner (main/api/worker-runner.ts)
+    // look for these beside the bundle that starts them.
     { entry: 'main/design/parallel/worker.ts', out: 'worker.js', target: 'worker' },
+    { entry: 'main/api/job-worker.ts', out: 'job-worker.js', target: 'worker' },
     { entry: 'app/index.html', out: 'renderer/index.html', target: 'renderer' },
   ],
   nativeModules: ['better-sqlite3'],
+  // pdfkit loads its standard fonts through its own package.json "imports" map, which only works from its own folder.
+  external: ['electron', 'better-sqlite3', '@napi-rs/canvas', 'pdfkit'],
   contentSecurityPolicy: "default-src 'none'; script-src 'self'; style-src 'self'; img-src 'self' data:; font-src 'self'; connect-src 'self'; base-uri 'none'; form-action 'none'; frame-ancestors 'none'",
 };
 

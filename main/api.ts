@@ -1,6 +1,8 @@
 // The one API surface. The CLI calls these functions in-process; browser mode (serve.ts) and
 // Electron's IPC (electron/) call `callApi`, which refuses methods outside the contract and
-// arguments of the wrong shape before any work is done. No analysis logic lives here.
+// arguments of the wrong shape before any work is done, then runs the method — on a worker
+// thread when the host gave a runner and the method is long (api/worker-runner.ts), otherwise
+// here. No analysis logic lives here.
 
 import { API_METHODS, OUTPUT_FORMATS, type ApiMethod, type ApiMethods, type ApiResult } from './contract/api.ts';
 import { checkShape, type Shape } from './api/args.ts';
@@ -10,6 +12,7 @@ import { checkDraftStudy, previewData } from './api/data.ts';
 import { boundaryMap } from './api/figures.ts';
 import { listFolder, openDialog, previewMemo, saveDialog } from './api/files.ts';
 import type { HostContext } from './api/host.ts';
+import { WORKER_METHODS } from './api/worker-runner.ts';
 import { checkProgram, tryUnit } from './api/program.ts';
 import { listSamples, openStudy, saveStudy } from './api/studies.ts';
 import { recentWork, recordedRun, workspaceInfo } from './api/workspace.ts';
@@ -49,7 +52,20 @@ const METHODS: { [M in ApiMethod]: { args: Shape; run: Handler<M> } } = {
   'dialog.openFile': { args: { object: { purpose: { oneOf: ['study', 'data'] }, defaultPath: path }, optional: ['defaultPath'] }, run: openDialog },
   'dialog.saveFile': { args: { object: { purpose: { oneOf: ['study', 'data'] }, defaultPath: path }, optional: ['defaultPath'] }, run: saveDialog },
   'memo.preview': { args: { object: { path } }, run: previewMemo },
-  'figure.map': { args: { object: { studyPath: path, workers: 'integer' }, optional: ['workers'] }, run: boundaryMap },
+  // The map's choices: their types here; whether the keys, delta and codes belong to the study, in api/figures.ts.
+  'figure.map': {
+    args: {
+      object: {
+        studyPath: path, workers: 'integer',
+        axes: { object: { x: 'string', y: 'string' } },
+        delta: 'number',
+        cell: { list: { object: { key: 'string', value: 'number' } }, max: 50 },
+        view: { oneOf: ['binned', 'units'] },
+      },
+      optional: ['workers', 'axes', 'delta', 'cell', 'view'],
+    },
+    run: boundaryMap,
+  },
 };
 
 /** The methods this build implements (the contract's list, checked against the registry in tests). */
@@ -65,5 +81,6 @@ export async function callApi(method: unknown, args: unknown, ctx: HostContext =
   const entry = METHODS[method];
   const problems = checkShape(args, entry.args, 'args');
   if (problems.length) return refuse(problems);
+  if (ctx.runInWorker && WORKER_METHODS.has(method)) return ctx.runInWorker(method, args, ctx);
   return (entry.run as Handler<ApiMethod>)(args as never, ctx);
 }

@@ -2,7 +2,8 @@
 // only, and every /api/ request must carry the random token printed once at launch in the
 // X-Fenceline-Token header (401 without it, 403 with a wrong one), so no other web page and no
 // other local user can call the api. The page is served with a strict Content-Security-Policy.
-// No analysis logic lives here: requests become callApi calls (main/api.ts).
+// No analysis logic lives here: requests become callApi calls (main/api.ts), the long ones on
+// worker threads (main/api/worker-runner.ts).
 
 import { randomBytes, timingSafeEqual } from 'node:crypto';
 import { readFileSync, statSync } from 'node:fs';
@@ -16,6 +17,7 @@ import buildConfig from '../electron.config.ts';
 import type { ApiResult } from './contract/api.ts';
 import { callApi } from './api.ts';
 import { JobTable } from './api/jobs.ts';
+import { createWorkerRunner } from './api/worker-runner.ts';
 
 export const TOKEN_HEADER = 'x-fenceline-token';
 const MAX_BODY_BYTES = 20 * 2 ** 20;
@@ -119,7 +121,8 @@ export async function startServer(options: ServeOptions = {}): Promise<RunningSe
   const token = Buffer.from(tokenText, 'utf8');
   const rendererDir = resolve(options.rendererDir ?? join(ROOT, buildConfig.outDir, 'renderer'));
   const workspaceDir = resolve(options.workspaceDir ?? defaultWorkspaceDir());
-  const host = { host: 'browser' as const, workspaceDir };
+  // Long methods (imports, the workspace, estimation) run on worker threads, so this loop keeps answering.
+  const host = { host: 'browser' as const, workspaceDir, runInWorker: createWorkerRunner() };
   const fault = (e: unknown): ApiResult<unknown> => { console.error('Fenceline internal fault:', e); return FAULT; };
   const jobs = new JobTable(callApi, host, fault);
   let port = 0;

@@ -1,6 +1,7 @@
 #!/usr/bin/env node
-// `npm start`: open the desktop app when the Electron runtime is installed; otherwise say so and
-// fall back to browser mode (the same renderer served on 127.0.0.1) when it is available.
+// `npm start`: open the desktop app (dist/main.js, built by npm run build:electron) when the
+// Electron runtime is installed; otherwise say so and fall back to browser mode (the same
+// renderer served on 127.0.0.1).
 import { existsSync } from 'node:fs';
 import { createRequire } from 'node:module';
 import { spawn } from 'node:child_process';
@@ -23,8 +24,16 @@ const serveEntry = join(root, 'main/serve.ts');
 const electronMain = join(root, 'dist/main.js');
 const binary = electronBinary();
 
-if (binary && existsSync(electronMain)) {
-  spawn(binary, [electronMain], { stdio: 'inherit' }).on('exit', (code) => process.exit(code ?? 0));
+const launchElectron = () => spawn(binary, [electronMain, ...process.argv.slice(2)], { stdio: 'inherit', cwd: root }).on('exit', (code) => process.exit(code ?? 0));
+
+if (binary) {
+  // The desktop app runs from its bundles (npm run build:electron); build them first when they are missing.
+  if (existsSync(electronMain) && existsSync(join(root, 'dist/renderer/index.html'))) launchElectron();
+  else {
+    console.error('Building the desktop app first (npm run build:electron)…');
+    spawn(process.execPath, ['--import', 'tsx', join(root, 'scripts/build-electron.mjs')], { stdio: ['ignore', 'ignore', 'inherit'], cwd: root })
+      .on('exit', (code) => { if (code === 0) launchElectron(); else { console.error('The desktop app could not be built; see the messages above.'); process.exit(code ?? 1); } });
+  }
 } else if (existsSync(serveEntry)) {
   console.error('The Electron runtime is not installed on this machine, so Fenceline opens in browser mode instead.');
   const serve = () => spawn(process.execPath, ['--import', 'tsx', serveEntry, ...process.argv.slice(2)], { stdio: 'inherit', cwd: root })

@@ -1,8 +1,7 @@
 // The study methods of the api: check a study, evaluate it, run the bundled demo. They adapt
 // files and the workspace to the pure pipeline (study.ts) and hold no analysis logic.
 
-import { resolve } from 'node:path';
-import { fileURLToPath } from 'node:url';
+import { join, resolve } from 'node:path';
 import type {
   ApiResult, CheckArgs, CheckReport, DemoArgs, EvaluateArgs, EvaluateReport, OutputFormat,
 } from '../contract/api.ts';
@@ -23,6 +22,7 @@ import { readStudyData, runStudy, type StudyRun } from '../study.ts';
 import { figureData } from '../report/figure-data.ts';
 import { memoFiles } from '../report/memo-files.ts';
 import { loadStudyFile } from '../studyfile/load.ts';
+import { SAMPLES_DIR } from '../resources.ts';
 import { refuse, type CallContext } from './context.ts';
 
 /** The memo formats this version can write (docs/cli.md: memo.pdf, memo.html, memo.docx, tables.xlsx). */
@@ -157,6 +157,6 @@ export async function evaluateStudy(args: EvaluateArgs, ctx: CallContext = {}): 
 
 /** The bundled sample study end to end. */
 export async function runDemo(args: DemoArgs, ctx: CallContext = {}): Promise<ApiResult<EvaluateReport>> {
-  const studyPath = fileURLToPath(new URL('../../sample-programs/winter-credit/study.json', import.meta.url));
+  const studyPath = join(SAMPLES_DIR, 'winter-credit', 'study.json');
   return evaluateStudy({ studyPath, outDir: args.outDir, ...(args.formats ? { formats: args.formats } : {}), ...(args.workers !== undefined ? { workers: args.workers } : {}) }, ctx);
 }

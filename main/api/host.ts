@@ -5,6 +5,7 @@
 import { join } from 'node:path';
 import type { AppHost, DialogArgs } from '../contract/api.ts';
 import type { CallContext } from './context.ts';
+import type { WorkerRunner } from './worker-runner.ts';
 
 export interface HostDialogs {
   openFile(args: DialogArgs): Promise<string | null>;
@@ -16,6 +17,8 @@ export interface HostContext extends CallContext {
   /** Folder of the workspace: the study files the app saves, run folders, the workspace file. */
   workspaceDir?: string;
   dialogs?: HostDialogs;
+  /** Runs the long methods (worker-runner.ts, WORKER_METHODS) on a worker thread; absent (the CLI, inside a worker): in-process. */
+  runInWorker?: WorkerRunner;
 }
 
 export interface WorkspaceLayout {

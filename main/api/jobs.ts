@@ -1,10 +1,13 @@
 // Long calls for transports that cannot hold a call open with a progress stream (browser mode
 // polls): a job runs one api call, keeps its latest progress event and its answer, and can be
-// cancelled. Progress is kept, not queued, so a caller sees at most one event per poll.
+// cancelled. Progress is kept, not queued, so a caller sees at most one event per poll, and
+// throttled to at most 10 changes a second per job (the latest kept). Where the host gave a
+// runner (browser mode), the long methods run on a worker thread (worker-runner.ts).
 
 import { randomBytes } from 'node:crypto';
 import type { ApiResult, ProgressEvent } from '../contract/api.ts';
 import type { HostContext } from './host.ts';
+import { throttleProgress } from './progress-throttle.ts';
 
 export type CallFn = (method: unknown, args: unknown, ctx: HostContext) => Promise<ApiResult<unknown>>;
 
@@ -35,10 +38,11 @@ export class JobTable {
     const id = randomBytes(12).toString('hex');
     const job: Job = { controller: new AbortController(), progress: null };
     this.jobs.set(id, job);
-    const ctx: HostContext = { ...this.host, signal: job.controller.signal, onProgress: (p) => { job.progress = p; } };
+    const progress = throttleProgress((p) => { job.progress = p; });
+    const ctx: HostContext = { ...this.host, signal: job.controller.signal, onProgress: (p) => progress.push(p) };
     this.call(method, args, ctx)
       .catch((e: unknown) => this.onFault(e))
-      .then((result) => { job.result = result; job.finishedAt = Date.now(); });
+      .then((result) => { progress.flush(); job.result = result; job.finishedAt = Date.now(); });
     return id;
   }
 

@@ -4,7 +4,6 @@
 
 import { readFileSync, readdirSync, statSync } from 'node:fs';
 import { basename, dirname, isAbsolute, join, relative, resolve, sep } from 'node:path';
-import { fileURLToPath } from 'node:url';
 import type { ApiResult, SamplesList, StudyOpenArgs, StudyOpened, StudySaveArgs, StudySaved } from '../contract/api.ts';
 import type { Study } from '../contract/study.ts';
 import { writeFilesAtomically } from '../output/write-files.ts';
@@ -14,9 +13,9 @@ import { validateStudy } from '../studyfile/validate.ts';
 import { refuse } from './context.ts';
 import type { HostContext } from './host.ts';
 import { rememberStudy } from './workspace.ts';
+import { SAMPLES_DIR } from '../resources.ts';
 
 const MAX_STUDY_BYTES = 20 * 2 ** 20;
-const SAMPLES_DIR = fileURLToPath(new URL('../../sample-programs/', import.meta.url));
 
 function readJson(path: string): ApiResult<unknown> {
   const label = basename(path);

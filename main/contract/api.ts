@@ -217,13 +217,31 @@ export interface DialogAnswer { path: string | null }
 export interface MemoPreviewArgs { path: string }
 export interface MemoPreview { path: string; html: string }
 
-export interface MapArgs { studyPath: string; workers?: number }
-/** The boundary-region map of the memo (main/report/figure-data.ts): binned counts only, small cells hidden. */
+export interface MapArgs {
+  studyPath: string;
+  workers?: number;
+  /** Continuous input keys across (x) and up (y); default: the pair with most units near the edge. */
+  axes?: { x: string; y: string };
+  /** One of the study's deltas; default: the headline delta. */
+  delta?: number;
+  /** Codes of discrete inputs to draw; an input left out takes its most common value near the edge. */
+  cell?: Array<{ key: string; value: number }>;
+  /** 'binned' (default; as in the memo) or 'units' (the analyst's private view: each unit a point; never in the memo or exports). */
+  view?: 'binned' | 'units';
+}
+/** A value a discrete input takes, with the units near the edge at the delta drawn (null: too few to show). */
+export interface MapCellValue { value: number; label: string; nearEdge: number | null }
+/** The boundary-region map (main/report/boundary-map.ts) and what the Map screen's pickers offer. */
 export interface MapFigure {
   spec: BoundaryMapSpec | null;
-  /** Why there is no map, or what is held fixed. */
+  /** Why there is no map, or what is held fixed (and, in the units view, how many units are drawn). */
   note: string | null;
   deltas: number[];
+  headlineDelta: number;
+  /** What was drawn, with every default filled in (axes null when there is no map). */
+  drawn: { axes: { x: string; y: string } | null; delta: number; cell: Array<{ key: string; value: number }>; view: 'binned' | 'units' };
+  continuous: Array<{ key: string; label: string; unit?: string }>;
+  discrete: Array<{ key: string; label: string; values: MapCellValue[] }>;
 }
 
 export interface AppApiMethods {

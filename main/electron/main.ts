@@ -15,6 +15,7 @@ import type { DialogArgs } from '../contract/api.ts';
 import { IPC_CHANNELS, type ShellEvent } from '../contract/bridge.ts';
 import { callApi } from '../api.ts';
 import type { HostDialogs } from '../api/host.ts';
+import { createWorkerRunner } from '../api/worker-runner.ts';
 import { APP_ENTRY, APP_SCHEME, isContractMethod, mayNavigate, mayRequest, refusedMethod, rendererFile, throttleProgress, windowOptions } from './policy.ts';
 
 const here = dirname(fileURLToPath(import.meta.url));
@@ -26,6 +27,8 @@ protocol.registerSchemesAsPrivileged([{ scheme: APP_SCHEME, privileges: { standa
 
 let window: BrowserWindow | null = null;
 const calls = new Map<string, AbortController>();
+// Long methods run on worker threads (dist/job-worker.js beside this bundle), never on this thread.
+const runInWorker = createWorkerRunner();
 
 function send(event: ShellEvent): void {
   window?.webContents.send(IPC_CHANNELS.event, event);
@@ -63,7 +66,7 @@ function wireIpc(workspaceDir: string): void {
     if (id) calls.set(id, controller);
     const progress = throttleProgress((p) => { if (id) send({ kind: 'progress', callId: id, progress: p }); });
     try {
-      return await callApi(method, args, { host: 'electron', workspaceDir, dialogs, signal: controller.signal, onProgress: (p) => progress.push(p) });
+      return await callApi(method, args, { host: 'electron', workspaceDir, dialogs, runInWorker, signal: controller.signal, onProgress: (p) => progress.push(p) });
     } catch (err) {
       console.error('Fenceline internal fault:', err);
       return { ok: false, error: { kind: 'input', problems: [{ path: '', message: 'Something went wrong inside Fenceline. Please keep the log for a bug report.' }] } };

@@ -2,7 +2,7 @@
 // without the Electron runtime: the window's web preferences, which methods the renderer may
 // call, where it may navigate, and how often progress reaches it.
 
-import { API_METHODS, type ApiMethod, type ApiResult, type ProgressEvent } from '../contract/api.ts';
+import { API_METHODS, type ApiMethod, type ApiResult } from '../contract/api.ts';
 
 /** The renderer is served from this privileged scheme (never file:// and never the network). */
 export const APP_SCHEME = 'fenceline';
@@ -80,26 +80,5 @@ export function rendererFile(url: string): string | null {
   return parts.join('/');
 }
 
-/**
- * At most one progress event per `intervalMs` (100 ms: 10 a second), always delivering the last
- * one a little later so the bar ends where the work ended. `flush` sends a pending event now.
- */
-export function throttleProgress(send: (p: ProgressEvent) => void, intervalMs = 100, now: () => number = Date.now,
-  schedule: (f: () => void, ms: number) => unknown = setTimeout): { push(p: ProgressEvent): void; flush(): void } {
-  let last = -Infinity;
-  let pending: ProgressEvent | null = null;
-  let timer = false;
-  const fire = () => {
-    timer = false;
-    if (pending) { last = now(); const p = pending; pending = null; send(p); }
-  };
-  return {
-    push(p) {
-      const t = now();
-      if (t - last >= intervalMs && !timer) { last = t; pending = null; send(p); return; }
-      pending = p;
-      if (!timer) { timer = true; schedule(fire, Math.max(0, intervalMs - (t - last))); }
-    },
-    flush() { if (pending) fire(); },
-  };
-}
+// The progress throttle is shared with the job workers (main/api/progress-throttle.ts).
+export { throttleProgress } from '../api/progress-throttle.ts';

@@ -2,13 +2,8 @@
 // values out. Counts are suppressed here (suppress.ts, docs/method.md §7) before they leave, and a
 // mean over a bin with a hidden count is dropped, so a figure never shows a small cell.
 //
-//  - Boundary-region map: of the pairs of continuous inputs, the one with most units near the
-//    edge at the headline delta (a unit counts for a pair when its ball crosses a criterion that
-//    mentions either input). The offer probability is the rule's own verdict on a grid (rules/
-//    atoms.ts `verdicts` on synthetic DesignColumns); the band is where 0 < APS < 1 at the headline
-//    delta, computed on the same grid by the design engine itself (design/aps.ts) with the run's
-//    scales; discrete inputs are fixed at their most common combination among units near the edge
-//    and other continuous inputs at their median there (named in the panel note).
+//  - Boundary-region map: boundary-map.ts (its options: axes, delta, discrete cell, view). The
+//    memo's figures take its binned view only.
 //  - Signed distance to the nearest edge (docs/memo.md): for each linear criterion that moves with
 //    a continuous input and whose reversal alone would reverse the unit's verdict, the distance
 //    in scaled units to its plane is |m(x)| / ‖∇m · scale‖ (the margin m is affine, so this is
@@ -20,17 +15,17 @@
 //  - Balance over all units: (mean among offered − mean among not offered) / √((s₁² + s₀²)/2)
 //    (Austin 2009, Statistics in Medicine 28(25):3083–3107), no adjustment.
 
-import { computeApsBlock } from '../design/aps.ts';
-import { ballPointSet } from '../design/ball-points.ts';
-import { atomTruthColumn, treeColumn, verdicts } from '../rules/atoms.ts';
+import { atomTruthColumn, treeColumn } from '../rules/atoms.ts';
 import { evalColumn, gradColumn } from '../rules/evaluate-columns.ts';
-import type { CompiledProgram, DesignColumns, IrNode } from '../rules/ir.ts';
+import type { CompiledProgram, DesignColumns } from '../rules/ir.ts';
 import type { StudyRun } from '../study.ts';
-import type {
-  AxisVariable, BinnedSeries, BoundaryMapData, DensityFigureData, FigureData, SignedDistanceData,
-} from './model/figure-types.ts';
-import { headlineIndex } from './model/memo-format.ts';
+import { boundaryMapData } from './boundary-map.ts';
+import { mentions, niceStep } from './figure-math.ts';
+import type { BinnedSeries, DensityFigureData, FigureData, SignedDistanceData } from './model/figure-types.ts';
 import { dependentFigure, suppressBinnedCounts, suppressCount } from './model/suppress.ts';
+
+export { boundaryMapData, boundaryMapChoices, type BoundaryMapOptions, type MapRun } from './boundary-map.ts';
+export { niceStep } from './figure-math.ts';
 
 export interface FigureDataOptions {
   /** Cells per side of the offer-probability grid (default 60). */
@@ -41,165 +36,6 @@ export interface FigureDataOptions {
   draws?: number;
   /** Bins on each side of the edge in the distance figures (default 10). */
   distanceBins?: number;
-}
-
-/** The input nodes an expression mentions. */
-function mentions(node: IrNode, i: number): boolean {
-  switch (node.k) {
-    case 'const': case 'disc': return false;
-    case 'cont': return node.i === i;
-    case 'neg': return mentions(node.a, i);
-    case 'min': case 'max': return node.args.some((a) => mentions(a, i));
-    case 'lookup': return [...node.table.values()].some((a) => mentions(a, i)) || (node.otherwise !== null && mentions(node.otherwise, i));
-    default: return mentions(node.a, i) || mentions(node.b, i);
-  }
-}
-
-function quantile(sorted: Float64Array, q: number): number {
-  if (!sorted.length) return NaN;
-  const pos = (sorted.length - 1) * q;
-  const lo = Math.floor(pos);
-  const hi = Math.ceil(pos);
-  return sorted[lo]! + (sorted[hi]! - sorted[lo]!) * (pos - lo);
-}
-
-function sortedFinite(values: ArrayLike<number>, keep: (r: number) => boolean): Float64Array {
-  const out: number[] = [];
-  for (let r = 0; r < values.length; r++) if (keep(r) && Number.isFinite(values[r]!)) out.push(values[r]!);
-  return Float64Array.from(out).sort();
-}
-
-function edges(lo: number, hi: number, cells: number): number[] {
-  return Array.from({ length: cells + 1 }, (_, i) => lo + ((hi - lo) * i) / cells);
-}
-
-function variableAxis(program: CompiledProgram, j: number): AxisVariable {
-  const v = program.continuous[j]!.variable;
-  return { key: v.key, label: v.label ?? v.key, ...(v.unit ? { unit: v.unit } : {}) };
-}
-
-/** The smallest of 1, 2, 2.5, 5 × 10^k at least x (round axis steps; common practice). */
-export function niceStep(x: number): number {
-  if (!(x > 0) || !Number.isFinite(x)) return 1;
-  const p = Math.pow(10, Math.floor(Math.log10(x)));
-  for (const m of [1, 2, 2.5, 5, 10]) if (m * p >= x * (1 - 1e-12)) return m * p;
-  return 10 * p;
-}
-
-/** [lo, hi] widened to multiples of a round step (about a tenth of the range). */
-function niceRange(lo: number, hi: number): [number, number] {
-  const step = niceStep((hi - lo) / 10);
-  return [Math.floor(lo / step) * step, Math.ceil(hi / step) * step];
-}
-
-const fmt = (v: number) => v.toLocaleString('en-US', { maximumSignificantDigits: 4 });
-
-export function boundaryMapData(run: StudyRun, opts: FigureDataOptions = {}): { map: BoundaryMapData | null; note: string | null } {
-  const { program, prepared, propensity, results } = run;
-  const cols = prepared.cols;
-  const k = headlineIndex(results);
-  const d = program.continuous.length;
-  if (d < 2) return { map: null, note: `The map of the rule’s edge needs two continuous inputs; this rule has ${d === 1 ? 'one' : 'none'}, so the edge is shown in the distance and density figures instead.` };
-  const aps = propensity.aps[k]!;
-  const straddle = propensity.straddle[k]!;
-  const near: number[] = [];
-  for (let r = 0; r < cols.n; r++) if (aps[r]! > 0 && aps[r]! < 1) near.push(r);
-  if (!near.length) return { map: null, note: 'No unit is near the edge of the rule at the headline delta, so there is no band to map.' };
-
-  // The pair of continuous inputs with most units near a criterion that mentions one of them.
-  const atomMentions = program.atoms.map((a) => program.continuous.map((_, j) => a.kind === 'compare' && mentions(a.margin, j)));
-  let best: [number, number] = [0, 1];
-  let bestCount = -1;
-  for (let a = 0; a < d; a++) for (let b = a + 1; b < d; b++) {
-    let count = 0;
-    for (const r of near) {
-      const mask = straddle[r]! >>> 0;
-      if (atomMentions.some((m, i) => i < 32 && (mask & (1 << i)) !== 0 && (m[a] || m[b]))) count++;
-    }
-    if (count > bestCount) { bestCount = count; best = [a, b]; }
-  }
-  const [xa, ya] = best;
-
-  // The most common combination of discrete inputs near the edge.
-  const keyOf = (r: number) => cols.discrete.map((c) => c[r]).join('|');
-  const tally = new Map<string, number>();
-  for (const r of near) tally.set(keyOf(r), (tally.get(keyOf(r)) ?? 0) + 1);
-  const panelKey = [...tally.entries()].sort((p, q) => q[1] - p[1] || (p[0] < q[0] ? -1 : 1))[0]![0];
-  const inPanel = (r: number) => keyOf(r) === panelKey;
-  const discreteValues = cols.discrete.map((c) => c[near.find(inPanel)!]!);
-  const panel = program.discrete.length
-    ? program.discrete.map((v, i) => `${v.variable.label ?? v.key}: ${fmt(discreteValues[i]!)}`).join(', ') + (tally.size > 1 ? ' (the most common among units near the edge; other values have their limits elsewhere)' : '')
-    : null;
-  const heldFixed: string[] = [];
-  const fixedValue = program.continuous.map((v, j) => {
-    if (j === xa || j === ya) return NaN;
-    const m = quantile(sortedFinite(cols.continuous[j]!, (r) => inPanel(r) && aps[r]! > 0 && aps[r]! < 1), 0.5);
-    heldFixed.push(`${v.variable.label ?? v.key} held at ${fmt(m)}${v.variable.unit ? ' ' + v.variable.unit : ''} (median near the edge)`);
-    return m;
-  });
-
-  const range = (j: number): [number, number] => {
-    const s = sortedFinite(cols.continuous[j]!, inPanel);
-    let lo = quantile(s, 0.01);
-    let hi = quantile(s, 0.99);
-    if (!(hi > lo)) { const pad = Math.abs(lo) * 0.1 || 1; lo -= pad; hi += pad; }
-    return niceRange(lo, hi);
-  };
-  const [x0, x1] = range(xa);
-  const [y0, y1] = range(ya);
-  const cells = opts.mapCells ?? 60;
-  const xEdges = edges(x0, x1, cells);
-  const yEdges = edges(y0, y1, cells);
-  const n = cells * cells;
-  const gridCols: DesignColumns = {
-    n,
-    continuous: program.continuous.map((_, j) => {
-      const c = new Float64Array(n);
-      for (let iy = 0; iy < cells; iy++) for (let ix = 0; ix < cells; ix++) {
-        c[iy * cells + ix] = j === xa ? (xEdges[ix]! + xEdges[ix + 1]!) / 2 : j === ya ? (yEdges[iy]! + yEdges[iy + 1]!) / 2 : fixedValue[j]!;
-      }
-      return c;
-    }),
-    discrete: discreteValues.map((v) => new Float64Array(n).fill(v)),
-  };
-  const offer = verdicts(program, gridCols).offerProbability;
-  const scaleOf = new Map(results.scales.map((s) => [s.key, s.scale]));
-  const scales = program.continuous.map((v) => scaleOf.get(v.key) ?? 1);
-  const draws = opts.draws ?? Math.min(1000, results.settings.draws);
-  const delta = results.settings.deltas[k]!;
-  const band = computeApsBlock(program, gridCols, scales, { deltas: [delta], draws, seed: results.settings.seed }, ballPointSet(d, draws, results.settings.seed)).aps[0]!;
-  const probability: number[][] = [];
-  const inBand: boolean[][] = [];
-  for (let iy = 0; iy < cells; iy++) {
-    probability.push(Array.from({ length: cells }, (_, ix) => offer[iy * cells + ix]!));
-    inBand.push(Array.from({ length: cells }, (_, ix) => { const p = band[iy * cells + ix]!; return p > 0 && p < 1; }));
-  }
-
-  const [cx, cy] = opts.countCells ?? [20, 16];
-  const cxEdges = edges(x0, x1, cx);
-  const cyEdges = edges(y0, y1, cy);
-  const counts = Array.from({ length: cy }, () => new Array<number>(cx).fill(0));
-  const xs = cols.continuous[xa]!;
-  const ys = cols.continuous[ya]!;
-  for (let r = 0; r < cols.n; r++) {
-    if (!inPanel(r)) continue;
-    const ix = Math.floor(((xs[r]! - x0) / (x1 - x0)) * cx);
-    const iy = Math.floor(((ys[r]! - y0) / (y1 - y0)) * cy);
-    if (ix < 0 || iy < 0 || ix >= cx || iy >= cy) continue;
-    counts[iy]![ix]!++;
-  }
-  return {
-    map: {
-      x: variableAxis(program, xa),
-      y: variableAxis(program, ya),
-      delta,
-      grid: { xEdges, yEdges, probability, inBand },
-      counts: { xEdges: cxEdges, yEdges: cyEdges, values: suppressBinnedCounts(counts, results.settings.smallCellMax) },
-      panel,
-      heldFixed,
-    },
-    note: null,
-  };
 }
 
 /** Signed distance to the nearest edge, in scaled units (NaN where no linear criterion is pivotal). */
@@ -338,7 +174,13 @@ export function balanceAllData(run: StudyRun): FigureData['balanceAll'] {
 
 /** Every figure's data for one run. */
 export function figureData(run: StudyRun, opts: FigureDataOptions = {}): FigureData {
-  const map = boundaryMapData(run, opts);
+  // The memo's map: default axes, headline delta, most common cell, binned counts (never individual units).
+  const map = boundaryMapData(run, {
+    view: 'binned',
+    ...(opts.mapCells !== undefined ? { mapCells: opts.mapCells } : {}),
+    ...(opts.countCells ? { countCells: opts.countCells } : {}),
+    ...(opts.draws !== undefined ? { draws: opts.draws } : {}),
+  });
   return {
     boundaryMap: map.map,
     boundaryMapNote: map.note,

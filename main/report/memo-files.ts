@@ -6,6 +6,7 @@
 import type { OutputFormat, ProgressEvent } from '../contract/api.ts';
 import type { Results } from '../contract/results.ts';
 import type { OutputFile } from '../output/write-files.ts';
+import { showsIndividualUnits } from './charts/spec.ts';
 import type { Document } from './model/document.ts';
 import type { FigureData } from './model/figure-types.ts';
 import { buildMemo, type MemoOptions } from './model/memo.ts';
@@ -33,8 +34,30 @@ export interface MemoFilesOptions extends MemoOptions {
   onProgress?: (p: ProgressEvent) => void;
 }
 
+/**
+ * The memo and every export show units as binned counts with small cells hidden (docs/method.md
+ * §7); the map's individual-units view is the analyst's private view in the app only. A fault if
+ * it reaches here (the types keep it out of FigureData; this holds for untyped callers too).
+ */
+export class PrivateViewRefused extends Error {
+  constructor(where: string) {
+    super(`${where} shows individual units (the app's private map view); memos and exported files show binned counts only.`);
+    this.name = 'PrivateViewRefused';
+  }
+}
+
+function refusePrivateFigures(figures: FigureData): void {
+  const map = figures.boundaryMap as (FigureData['boundaryMap'] & { view?: string; units?: unknown }) | null;
+  if (map && (map.view !== 'binned' || map.units !== undefined)) throw new PrivateViewRefused('The boundary-region map');
+}
+
+function refusePrivateDocument(doc: Document): void {
+  for (const f of figuresOf(doc)) if (showsIndividualUnits(f.chart)) throw new PrivateViewRefused(`Figure "${f.id}"`);
+}
+
 /** Render an already built memo document in the chosen formats. */
 export async function renderMemoDocument(doc: Document, formats: readonly OutputFormat[], onProgress?: (p: ProgressEvent) => void): Promise<OutputFile[]> {
+  refusePrivateDocument(doc);
   const chosen = [...new Set(formats)];
   if (!chosen.length) return [];
   const needFigures = chosen.some((f) => f !== 'xlsx') && figuresOf(doc).length > 0;
@@ -53,6 +76,7 @@ export async function renderMemoDocument(doc: Document, formats: readonly Output
 
 /** Build the memo from the results and figure data and render it in the chosen formats. */
 export async function memoFiles(results: Results, figures: FigureData, formats: readonly OutputFormat[], opts: MemoFilesOptions): Promise<OutputFile[]> {
+  refusePrivateFigures(figures);
   if (!formats.length) return [];
   const doc = buildMemo(results, figures, { createdAt: opts.createdAt, ...(opts.author ? { author: opts.author } : {}) });
   return renderMemoDocument(doc, formats, opts.onProgress);

@@ -100,11 +100,31 @@ describe('the guided path, start to memo', () => {
     await page.waitForTimeout(300);
     await shot(page, '05-evidence');
 
-    // Map.
+    // Map: the memo's choices first; then the delta slider (by keyboard) and an axis picker redraw it.
     await page.getByRole('button', { name: /^○?✓?\s*Map/ }).click();
-    await page.locator('canvas').first().waitFor({ timeout: 60_000 });
+    const chart = page.getByTestId('map-chart');
+    await chart.locator('canvas').waitFor({ timeout: 60_000 });
+    expect(await chart.getAttribute('data-axes')).toBe('income,age');
+    expect(await chart.getAttribute('data-delta')).toBe('0.1');
     await page.waitForTimeout(300);
     await shot(page, '06-map');
+    const before = await chart.locator('canvas').screenshot();
+    const slider = page.getByLabel(/Ball radius δ/);
+    await slider.focus();
+    await page.keyboard.press('ArrowRight');
+    await expect.poll(() => chart.getAttribute('data-delta'), { timeout: 30_000 }).toBe('0.2');
+    expect(await page.getByTestId('map-delta-value').textContent()).toBe('0.2');
+    await page.waitForTimeout(300);
+    expect((await chart.locator('canvas').screenshot()).equals(before)).toBe(false);
+    await page.getByLabel('Across (x axis)').selectOption({ label: 'Age of oldest member' });
+    await expect.poll(() => chart.getAttribute('data-axes'), { timeout: 30_000 }).toBe('age,income');
+    expect(await page.getByLabel('Up (y axis)').inputValue()).toBe('income');
+    expect(await chart.locator('canvas').getAttribute('aria-label')).toMatch(/Age of oldest member across, Annual household income up, band at delta 0\.2/);
+    await page.getByLabel('People in household').selectOption('2');
+    await page.getByLabel('Show individual units (private view)').check();
+    await expect.poll(() => chart.getAttribute('data-view'), { timeout: 30_000 }).toBe('units');
+    await page.waitForTimeout(300);
+    await shot(page, '06-map-private-view');
 
     // Memo: the files the run wrote, on disk.
     await page.getByRole('button', { name: /^○?✓?\s*Memo/ }).click();

@@ -209,12 +209,20 @@ function boundaryMapConfig(spec: BoundaryMapSpec, o: Opts): AnyChartConfig {
     type: 'scatter', label, data: [], pointStyle: 'rect', pointBackgroundColor: color, backgroundColor: color,
     borderColor: INK.axis, pointBorderColor: INK.axis, ...extra,
   });
+  const unitDatasets = spec.units
+    ? [
+      // Private view: offered and not offered differ in shape (triangle / circle) as well as colour (SIDE_STYLE).
+      pointDataset('Offered (a unit)', spec.units.offered, 'above', { pointRadius: 3, pointHoverRadius: 5, pointBackgroundColor: 'rgba(213, 94, 0, 0.7)', pointBorderColor: 'rgba(26, 26, 26, 0.8)', pointBorderWidth: 0.5 }),
+      pointDataset('Not offered (a unit)', spec.units.notOffered, 'below', { pointRadius: 2.5, pointHoverRadius: 5, pointBackgroundColor: 'rgba(0, 114, 178, 0.35)', pointBorderColor: 'rgba(0, 60, 100, 0.7)', pointBorderWidth: 0.5 }),
+    ]
+    : [];
   const datasets: unknown[] = [
     // The markers are drawn by the grid plugin (their size follows the cell size in pixels);
     // this empty dataset gives them a legend entry.
-    legendSwatch('Units: circle area shows the count per bin; bins with few units are blank', 'rgba(255, 255, 255, 0.85)', {
+    ...(c ? [legendSwatch('Units: circle area shows the count per bin; bins with few units are blank', 'rgba(255, 255, 255, 0.85)', {
       pointStyle: 'circle', borderColor: INK.text, pointBorderColor: INK.text,
-    }),
+    })] : []),
+    ...unitDatasets,
     legendSwatch('Offer probability 0', probabilityFill(0)),
     legendSwatch('Offer probability 0.5', probabilityFill(0.5)),
     legendSwatch('Offer probability 1', probabilityFill(1)),
@@ -222,15 +230,14 @@ function boundaryMapConfig(spec: BoundaryMapSpec, o: Opts): AnyChartConfig {
   ];
   const options = baseOptions(spec, o, axisTitle(spec.x), axisTitle(spec.y));
   const scales = options['scales'] as Record<string, Record<string, unknown>>;
-  const xAll = [...g.xEdges, ...c.xEdges];
-  const yAll = [...g.yEdges, ...c.yEdges];
+  const xAll = [...g.xEdges, ...(c?.xEdges ?? [])];
+  const yAll = [...g.yEdges, ...(c?.yEdges ?? [])];
   scales['x'] = { ...scales['x'], type: 'linear', min: Math.min(...xAll), max: Math.max(...xAll), grid: { display: false } };
   scales['y'] = { ...scales['y'], type: 'linear', min: Math.min(...yAll), max: Math.max(...yAll), grid: { display: false } };
   return cfg('scatter', datasets, options, [
     shadedGridPlugin({
       xEdges: g.xEdges, yEdges: g.yEdges, fill, hatch: g.inBand, hatchColor: 'rgba(0, 0, 0, 0.45)',
-      markers: { xEdges: c.xEdges, yEdges: c.yEdges, values: c.values, fill: 'rgba(255, 255, 255, 0.85)', stroke: INK.text },
+      ...(c ? { markers: { xEdges: c.xEdges, yEdges: c.yEdges, values: c.values, fill: 'rgba(255, 255, 255, 0.85)', stroke: INK.text } } : {}),
     }),
   ]);
 }
-

@@ -94,7 +94,8 @@ export interface BalanceSpec extends ChartBase {
 /**
  * The boundary-region map: two continuous inputs of the formula on the axes, the offer probability
  * shaded over a precomputed grid, the boundary band for one delta (a mask on the same grid) and the
- * units as binned counts (already suppressed: null = hidden, drawn blank).
+ * units as binned counts (already suppressed: null = hidden, drawn blank) — or, in the app's
+ * private view only, as individual points (`units`; memo-files.ts refuses a spec that has them).
  */
 export interface BoundaryMapSpec extends ChartBase {
   kind: 'boundaryMap';
@@ -110,12 +111,22 @@ export interface BoundaryMapSpec extends ChartBase {
     inBand: boolean[][];
   };
   delta: number;
-  /** Unit counts on their own (coarser or equal) grid. */
-  counts: {
+  /** Unit counts on their own (coarser or equal) grid: the memo's and every export's view. */
+  counts?: {
     xEdges: number[];
     yEdges: number[];
     values: Array<Array<number | null>>;
   };
+  /** The analyst's private view in the app: each unit a point, offered and not offered told apart by shape and colour. */
+  units?: {
+    offered: Array<{ x: number; y: number }>;
+    notOffered: Array<{ x: number; y: number }>;
+  };
+}
+
+/** True when a map spec shows individual units (allowed in the app's private view only). */
+export function showsIndividualUnits(spec: ChartSpec): boolean {
+  return spec.kind === 'boundaryMap' && spec.units !== undefined;
 }
 
 export function axisTitle(axis: AxisSpec): string {
