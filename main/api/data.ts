@@ -4,15 +4,11 @@
 
 import { isAbsolute, resolve } from 'node:path';
 import type { ApiResult, CheckReport, DataCheckArgs, DataPreview, DataPreviewArgs, PreviewColumn } from '../contract/api.ts';
-import { describeAtom } from '../estimate/composition.ts';
 import { displayText } from '../data/find-column.ts';
 import { readTable } from '../data/read-table.ts';
 import { CellKind, type RawColumn } from '../data/types.ts';
-import { prepareUnits } from '../pipeline/prepare-units.ts';
-import { lowerValidatedProgram } from '../rules/compile.ts';
 import { getOwn, isPlainObject } from '../rules/json-read.ts';
-import { describeProgram } from '../rules/wording.ts';
-import { readStudyData } from '../study.ts';
+import { checkValidatedStudy } from './evaluate.ts';
 import { validateStudy } from '../studyfile/validate.ts';
 import { suggestRoles, type ColumnFacts, type ProgramColumns } from './column-roles.ts';
 import { refuse, type CallContext } from './context.ts';
@@ -100,25 +96,5 @@ export async function checkDraftStudy(args: DataCheckArgs, ctx: CallContext = {}
   if (!isAbsolute(study.data.path) && args.baseDir === undefined) {
     return refuse([{ path: 'data.path', message: `The data file ${study.data.path} is given without its folder. Choose the file again so its full location is known.` }]);
   }
-  const read = await readStudyData(study, { baseDir, ...ctx });
-  if (!read.ok) return refuse(read.problems);
-  const { mapped, table } = read.value;
-  const program = lowerValidatedProgram(study.program);
-  const prepared = prepareUnits(program, mapped, study.program.variables.map((v) => v.key), (a) => describeAtom(program, a));
-  return {
-    ok: true,
-    value: {
-      title: study.title,
-      dataFile: table.source.fileName,
-      sheet: table.source.sheet,
-      rowsRead: mapped.rowsRead,
-      rowsUsed: prepared.data.n,
-      rowsExcluded: [...mapped.excluded, ...prepared.excludedByRule],
-      outcomesMissing: study.columns.outcomes.map((o, i) => ({ column: o.column, count: prepared.data.outcomeMissing[i]?.count ?? 0 })),
-      fidelity: prepared.fidelity,
-      eligible: prepared.eligible.reduce((a, b) => a + b, 0),
-      notes: mapped.notes,
-      ruleWording: describeProgram(study.program),
-    },
-  };
+  return checkValidatedStudy(study, baseDir, ctx);
 }

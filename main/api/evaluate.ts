@@ -31,7 +31,11 @@ export const AVAILABLE_MEMO_FORMATS: readonly OutputFormat[] = ['pdf', 'html', '
 export async function checkStudy(args: CheckArgs, ctx: CallContext = {}): Promise<ApiResult<CheckReport>> {
   const loaded = loadStudyFile(args.studyPath);
   if (!loaded.ok) return refuse(loaded.problems);
-  const { study, baseDir } = loaded.value;
+  return checkValidatedStudy(loaded.value.study, loaded.value.baseDir, ctx);
+}
+
+/** Read and map a validated study's data and report what will be used, estimating nothing. */
+export async function checkValidatedStudy(study: Study, baseDir: string, ctx: CallContext = {}): Promise<ApiResult<CheckReport>> {
   const read = await readStudyData(study, { baseDir, ...ctx });
   if (!read.ok) return refuse(read.problems);
   const { mapped, table } = read.value;
