@@ -243,40 +243,27 @@ export function localLinear(input: LocalLinearInput): LocalLinearResult {
   const rf = ols(outcome, [...controls, instrument], options);
   const rfz = rf.coefficients.find((c) => c.name === 'offer')!;
   const outcomeJump = { coef: rfz.estimate, se: rfz.se };
-  if (!input.treatment) {
-    return {
-      bandwidth: h,
-      bandwidthSource: ik ? 'IK 2012' : 'given',
-      ik,
-      unitsOffered: offered,
-      unitsNotOffered: notOffered,
-      outcomeJump,
-      takeUpJump: null,
-      estimate: rfz.estimate,
-      se: rfz.se,
-      ci: [rfz.estimate - critical * rfz.se, rfz.estimate + critical * rfz.se],
-      p: twoSidedNormalP(rfz.estimate / rfz.se),
-      warnings,
-    };
-  }
-  const dAll = pick(input.treatment);
-  const fit = tsls({ outcome, endogenous: [col('take-up', (j) => dAll[j]!)], instruments: [instrument], controls }, options);
-  const first = fit.firstStages[0]!.fit.coefficients.find((c) => c.name === 'offer')!;
-  const effect = fit.coefficients.find((c) => c.name === 'take-up')!;
-  return {
+  // the estimate with its normal-reference inference, shared by the sharp and fuzzy designs
+  const result = (est: { estimate: number; se: number }, takeUpJump: LocalLinearResult['takeUpJump'], extra: EstimateWarning[]): LocalLinearResult => ({
     bandwidth: h,
     bandwidthSource: ik ? 'IK 2012' : 'given',
     ik,
     unitsOffered: offered,
     unitsNotOffered: notOffered,
     outcomeJump,
-    takeUpJump: { coef: first.estimate, se: first.se },
-    estimate: effect.estimate,
-    se: effect.se,
-    ci: [effect.estimate - critical * effect.se, effect.estimate + critical * effect.se],
-    p: twoSidedNormalP(effect.estimate / effect.se),
-    warnings: [...warnings, ...fit.warnings],
-  };
+    takeUpJump,
+    estimate: est.estimate,
+    se: est.se,
+    ci: [est.estimate - critical * est.se, est.estimate + critical * est.se],
+    p: twoSidedNormalP(est.estimate / est.se),
+    warnings: [...warnings, ...extra],
+  });
+  if (!input.treatment) return result(rfz, null, []);
+  const dAll = pick(input.treatment);
+  const fit = tsls({ outcome, endogenous: [col('take-up', (j) => dAll[j]!)], instruments: [instrument], controls }, options);
+  const first = fit.firstStages[0]!.fit.coefficients.find((c) => c.name === 'offer')!;
+  const effect = fit.coefficients.find((c) => c.name === 'take-up')!;
+  return result(effect, { coef: first.estimate, se: first.se }, fit.warnings);
 }
 
 export type SingleCutoff =

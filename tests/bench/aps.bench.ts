@@ -5,11 +5,11 @@
 // three deltas; draws = 4,000. Beside it, on a 50,000-unit subsample, the method as usually
 // stated: `draws` pseudo-random points uniform in every unit's ball, the rule evaluated at each.
 
+import { readFileSync } from 'node:fs';
 import { performance } from 'node:perf_hooks';
-import { computeApsBlock, METHOD_SIMULATED, type ApsColumns } from '../../main/design/aps.ts';
+import { computeApsBlock, METHOD_SIMULATED, sliceColumns, type ApsColumns } from '../../main/design/aps.ts';
 import { ballPointSet, cubeDimension, cubeToBall } from '../../main/design/ball-points.ts';
 import { computePropensityParallel, defaultWorkerCount } from '../../main/design/parallel/pool.ts';
-import { sliceColumns } from '../../main/design/aps.ts';
 import { createRng } from '../../main/design/random.ts';
 import { compileProgram } from '../../main/rules/compile.ts';
 import { compilePoint } from '../../main/rules/evaluate-scalar.ts';
@@ -23,21 +23,8 @@ const DELTAS = [0.05, 0.1, 0.2];
 const DRAWS = 4000;
 const SEED = 1;
 
-const program = {
-  name: 'Winter heating credit (invented benchmark program)',
-  variables: [
-    { key: 'income', label: 'Annual household income', type: 'continuous', unit: 'USD', column: 'HH_INCOME', scale: 10000 },
-    { key: 'size', label: 'People in household', type: 'discrete', column: 'HH_SIZE' },
-    { key: 'age', label: 'Age of oldest member', type: 'continuous', unit: 'years', column: 'AGE_MAX', scale: 10 },
-  ],
-  rule: {
-    all: [
-      { value: 'income', op: '<=', limit: { by: 'size', table: { '1': 21000, '2': 28000, '3': 35000 }, else: '35000 + 7000 * (size - 3)' } },
-      { any: [{ value: 'age', op: '>=', limit: 65 }, { value: 'income / size', op: '<=', limit: 6000 }] },
-    ],
-  },
-  offer: { ifEligible: 1, ifIneligible: 0 },
-};
+// the sample program's rule (sample-programs/winter-credit, invented): read, not restated
+const program = JSON.parse(readFileSync(new URL('../../sample-programs/winter-credit/study.json', import.meta.url), 'utf8')).program;
 
 function synthetic(n: number): DesignColumns {
   const rng = createRng(20261201, 1);

@@ -17,6 +17,7 @@ import { join } from 'node:path';
 import { performance } from 'node:perf_hooks';
 import { fileURLToPath } from 'node:url';
 import ExcelJS from 'exceljs';
+import { createRng } from '../../main/design/random.ts';
 
 const ROWS = Number(process.env.BENCH_IMPORT_ROWS ?? (process.env.BENCH_QUICK === '1' ? 100_000 : 1_000_000));
 const HEADER = ['APPLICANT_ID', 'HH_INCOME', 'HH_SIZE', 'AGE_MAX', 'OFFICE', 'RENTER', 'ARREARS_PRIOR', 'OFFERED', 'RECEIVED', 'ARREARS_MARCH', 'APPLIED_ON', 'NOTE'];
@@ -25,15 +26,10 @@ const TARGET_RATIO = 1.5;
 const TARGET_PEAK_MB = 1536;
 const TARGET_CSV_SECONDS = 5;
 
-/** xorshift32 (G. Marsaglia, "Xorshift RNGs", J. Stat. Softw. 8(14), 2003): cheap, reproducible filler. */
-function xorshift32(seed: number): () => number {
-  let x = seed >>> 0 || 1;
-  return () => {
-    x ^= x << 13; x >>>= 0;
-    x ^= x >>> 17;
-    x ^= x << 5; x >>>= 0;
-    return x / 4294967296;
-  };
+/** Cheap reproducible filler: the project's seeded generator (main/design/random.ts), 32 bits a draw. */
+function filler(seed: number): () => number {
+  const rng = createRng(seed);
+  return () => rng.nextUint32() / 4294967296;
 }
 
 /** Row i of the invented table: IDs, whole and decimal numbers, 0/1 flags, a category, a date, a sparse note. */
@@ -65,7 +61,7 @@ async function generate(dir: string): Promise<{ xlsx: string; csv: string }> {
   const out = createWriteStream(csv);
   const write = (s: string) => (out.write(s) ? Promise.resolve() : new Promise<void>((r) => out.once('drain', () => r())));
   await write(HEADER.join(',') + '\r\n');
-  const next = xorshift32(20260301);
+  const next = filler(20260301);
   let buffer = '';
   for (let i = 0; i < ROWS; i++) {
     const row = makeRow(next, i);

@@ -10,24 +10,20 @@ import { join } from 'node:path';
 import { performance } from 'node:perf_hooks';
 import { openWorkspace } from '../../main/store/workspace.ts';
 import type { DatasetColumnInput } from '../../main/store/types.ts';
+import { createRng } from '../../main/design/random.ts';
 
 const ROWS = Number(process.env.BENCH_STORE_ROWS ?? 1_000_000);
 const F64_COLUMNS = 20;
 const TARGET_SECONDS = 1;
 
-/** xorshift32 (Marsaglia 2003, "Xorshift RNGs", J. Stat. Softw. 8(14)): cheap, reproducible filler. */
-function xorshift32(seed: number): () => number {
-  let x = seed >>> 0 || 1;
-  return () => {
-    x ^= x << 13; x >>>= 0;
-    x ^= x >>> 17;
-    x ^= x << 5; x >>>= 0;
-    return x / 4294967296;
-  };
+/** Cheap reproducible filler: the project's seeded generator (main/design/random.ts), 32 bits a draw. */
+function filler(seed: number): () => number {
+  const rng = createRng(seed);
+  return () => rng.nextUint32() / 4294967296;
 }
 
 function makeColumns(): { rowNumbers: Int32Array; columns: DatasetColumnInput[] } {
-  const next = xorshift32(20250301);
+  const next = filler(20250301);
   const rowNumbers = new Int32Array(ROWS);
   for (let i = 0; i < ROWS; i++) rowNumbers[i] = i + 2; // row 1 holds the headers
   const columns: DatasetColumnInput[] = [];

@@ -2,29 +2,17 @@
 // winter-credit.ts): one CSV with every column and a study that reads it. Used by the job
 // worker tests and the responsiveness benchmark.
 
-import { openSync, closeSync, writeSync, writeFileSync } from 'node:fs';
+import { openSync, closeSync, readFileSync, writeSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { winterCreditRows } from '../../main/data/synthetic/winter-credit.ts';
+
+/** The sample program's rule, read from its study file rather than restated. */
+const SAMPLE_PROGRAM: unknown = JSON.parse(readFileSync(new URL('../../sample-programs/winter-credit/study.json', import.meta.url), 'utf8')).program;
 
 export const singleFileStudy = (deltas: number[] = [0.05, 0.1, 0.2]) => ({
   fenceline: 1,
   title: 'Winter energy credit, one file (invented data)',
-  program: {
-    name: 'Winter Energy Credit (invented example)',
-    unit: 'household',
-    variables: [
-      { key: 'income', label: 'Annual household income', type: 'continuous', unit: 'USD', column: 'HH_INCOME', scale: 10000 },
-      { key: 'size', label: 'People in household', type: 'discrete', column: 'HH_SIZE' },
-      { key: 'age', label: 'Age of oldest member', type: 'continuous', unit: 'years', column: 'AGE_MAX', scale: 10 },
-    ],
-    rule: {
-      all: [
-        { value: 'income', op: '<=', limit: { by: 'size', table: { '1': 21000, '2': 28000, '3': 35000 }, else: '35000 + 7000 * (size - 3)' } },
-        { any: [{ value: 'age', op: '>=', limit: 65 }, { value: 'income / size', op: '<=', limit: 6000 }] },
-      ],
-    },
-    offer: { ifEligible: 1, ifIneligible: 0 },
-  },
+  program: SAMPLE_PROGRAM,
   data: { path: 'applicants.csv' },
   columns: {
     id: 'APPLICANT_ID',
