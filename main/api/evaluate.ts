@@ -18,7 +18,7 @@ import { describeProgram } from '../rules/wording.ts';
 import { openWorkspace } from '../store/workspace.ts';
 import type { DatasetColumnInput } from '../store/types.ts';
 import { SOFTWARE_VERSION } from '../store/software-version.ts';
-import { readStudyData, runStudy, type StudyRun } from '../study.ts';
+import { readStudyData, runStudy, type StudyRun } from '../pipeline/run-study.ts';
 import { figureData } from '../report/figure-data.ts';
 import { memoFiles } from '../report/memo-files.ts';
 import { loadStudyFile } from '../studyfile/load.ts';

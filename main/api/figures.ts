@@ -25,7 +25,7 @@ import { Cancelled } from '../design/propensity.ts';
 import { boundaryMapChoices, boundaryMapData, deltaIndex, discreteCodes, type MapRun } from '../report/boundary-map.ts';
 import type { BoundaryMapData } from '../report/model/figure-types.ts';
 import type { Problem } from '../rules/types.ts';
-import { runStudy } from '../study.ts';
+import { runStudy } from '../pipeline/run-study.ts';
 import { loadStudyFile } from '../studyfile/load.ts';
 import { refuse, type CallContext } from './context.ts';
 import type { HostContext } from './host.ts';

@@ -18,7 +18,7 @@
 import { atomTruthColumn, treeColumn } from '../rules/atoms.ts';
 import { evalColumn, gradColumn } from '../rules/evaluate-columns.ts';
 import type { CompiledProgram, DesignColumns } from '../rules/ir.ts';
-import type { StudyRun } from '../study.ts';
+import type { StudyRun } from '../pipeline/run-study.ts';
 import { boundaryMapData } from './boundary-map.ts';
 import { mentions, niceStep } from './figure-math.ts';
 import type { BinnedSeries, DensityFigureData, FigureData, SignedDistanceData } from './model/figure-types.ts';

@@ -12,7 +12,7 @@ import { memoFiles, PrivateViewRefused, renderMemoDocument } from '../../main/re
 import type { Figure } from '../../main/report/model/document.ts';
 import { buildMemo } from '../../main/report/model/memo.ts';
 import { figuresOf } from '../../main/report/render/figures.ts';
-import { runStudy, type StudyRun } from '../../main/study.ts';
+import { runStudy, type StudyRun } from '../../main/pipeline/run-study.ts';
 import { loadStudyFile } from '../../main/studyfile/load.ts';
 import { runFixture } from './memo-fixture.ts';
 import { SUM_LIMIT, writeThreeInputFixture } from './map-fixture.ts';

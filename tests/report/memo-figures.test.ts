@@ -10,7 +10,7 @@ import { scrubSmallCounts } from '../../main/report/model/memo-scrub.ts';
 import { lowerValidatedProgram } from '../../main/rules/compile.ts';
 import { verdicts } from '../../main/rules/atoms.ts';
 import type { Program } from '../../main/rules/types.ts';
-import type { StudyRun } from '../../main/study.ts';
+import type { StudyRun } from '../../main/pipeline/run-study.ts';
 import { runFixture } from './memo-fixture.ts';
 
 let run: StudyRun;

@@ -8,7 +8,7 @@ import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { loadStudyFile } from '../../main/studyfile/load.ts';
-import { runStudy, type StudyRun } from '../../main/study.ts';
+import { runStudy, type StudyRun } from '../../main/pipeline/run-study.ts';
 
 /** Park & Miller (1988) minimal standard generator, then Box–Muller (1958) for normals. */
 function rng(seed: number) {

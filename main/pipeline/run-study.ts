@@ -3,31 +3,31 @@
 // the file system. Same study, data and seed → the same results, byte for byte.
 
 import { basename, isAbsolute, resolve } from 'node:path';
-import type { Study } from './contract/study.ts';
-import type { ExclusionReason, Results, Warning } from './contract/results.ts';
-import { readJoins } from './data/join.ts';
-import { mapStudyColumns, type ColumnSpec, type MappedData } from './data/map-columns.ts';
-import { readTable } from './data/read-table.ts';
-import type { RawTable } from './data/types.ts';
-import { computePropensityParallel } from './design/parallel/pool.ts';
-import type { PropensityResult, Progress } from './design/propensity.ts';
-import { resolutionWarnings } from './design/resolution.ts';
-import { estimateApsIv, type ApsIvResult } from './estimate/aps-iv.ts';
-import { balanceChecks } from './estimate/balance.ts';
-import { complierProfiles } from './estimate/compliers.ts';
-import { boundaryComposition, describeAtom } from './estimate/composition.ts';
-import { densityChecksForProgram } from './estimate/density.ts';
-import { localLinear, singleCutoff } from './estimate/local-linear.ts';
-import { holmByDelta } from './estimate/multiplicity.ts';
-import { deltaSensitivity } from './estimate/sensitivity.ts';
-import { thresholdChanges } from './estimate/threshold-change.ts';
-import type { NamedColumn } from './estimate/types.ts';
-import { prepareUnits, type PreparedUnits } from './pipeline/prepare-units.ts';
-import { lowerValidatedProgram } from './rules/compile.ts';
-import type { CompiledProgram } from './rules/ir.ts';
-import type { Checked, Problem } from './rules/types.ts';
-import { describeCondition, describeOffer, describeProgram } from './rules/wording.ts';
-import { SOFTWARE_VERSION } from './store/software-version.ts';
+import type { Study } from '../contract/study.ts';
+import type { ExclusionReason, Results, Warning } from '../contract/results.ts';
+import { readJoins } from '../data/join.ts';
+import { mapStudyColumns, type ColumnSpec, type MappedData } from '../data/map-columns.ts';
+import { readTable } from '../data/read-table.ts';
+import type { RawTable } from '../data/types.ts';
+import { computePropensityParallel } from '../design/parallel/pool.ts';
+import type { PropensityResult, Progress } from '../design/propensity.ts';
+import { resolutionWarnings } from '../design/resolution.ts';
+import { estimateApsIv, type ApsIvResult } from '../estimate/aps-iv.ts';
+import { balanceChecks } from '../estimate/balance.ts';
+import { complierProfiles } from '../estimate/compliers.ts';
+import { boundaryComposition, describeAtom } from '../estimate/composition.ts';
+import { densityChecksForProgram } from '../estimate/density.ts';
+import { localLinear, singleCutoff } from '../estimate/local-linear.ts';
+import { holmByDelta } from '../estimate/multiplicity.ts';
+import { deltaSensitivity } from '../estimate/sensitivity.ts';
+import { thresholdChanges } from '../estimate/threshold-change.ts';
+import type { NamedColumn } from '../estimate/types.ts';
+import { prepareUnits, type PreparedUnits } from './prepare-units.ts';
+import { lowerValidatedProgram } from '../rules/compile.ts';
+import type { CompiledProgram } from '../rules/ir.ts';
+import type { Checked, Problem } from '../rules/types.ts';
+import { describeCondition, describeOffer, describeProgram } from '../rules/wording.ts';
+import { SOFTWARE_VERSION } from '../store/software-version.ts';
 
 export interface RunOptions {
   /** Folder that relative data paths are resolved against (the study file's folder). */
