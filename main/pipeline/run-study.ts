@@ -18,6 +18,7 @@ import { complierProfiles } from '../estimate/compliers.ts';
 import { boundaryComposition, describeAtom } from '../estimate/composition.ts';
 import { densityChecksForProgram } from '../estimate/density.ts';
 import { localLinear, singleCutoff } from '../estimate/local-linear.ts';
+import { headlineDeltaIndex } from '../estimate/headline.ts';
 import { holmByDelta } from '../estimate/multiplicity.ts';
 import { deltaSensitivity } from '../estimate/sensitivity.ts';
 import { thresholdChanges } from '../estimate/threshold-change.ts';
@@ -190,7 +191,7 @@ export async function runStudy(study: Study, options: RunOptions): Promise<Check
     }
     return { ...o, sensitivity, localLinear: local };
   });
-  const middle = Math.floor(ps.deltas.length / 2);
+  const middle = headlineDeltaIndex(ps.deltas);
   const thresholds = thresholdChanges({
     program,
     columns: cols,
