@@ -261,3 +261,22 @@ export interface AppApiMethods {
   'memo.preview': { args: MemoPreviewArgs; result: MemoPreview };
   'figure.map': { args: MapArgs; result: MapFigure };
 }
+
+// Files the user hands over (project rule: the renderer never names an arbitrary path). In browser
+// mode the page posts the bytes of a file the user picked or dropped to UPLOAD_ENDPOINT (raw body,
+// the launch token header as for every call, the original name URI-encoded in UPLOAD_NAME_HEADER);
+// the host stores them in the workspace's uploads folder, adds the stored path to the session's
+// allow-list and answers `ApiResult<UploadedFile>` (413 with a plain message beyond
+// UPLOAD_MAX_BYTES). In Electron the native open dialog adds the picked path the same way.
+export const UPLOAD_ENDPOINT = '/api/upload';
+export const UPLOAD_NAME_HEADER = 'X-Fenceline-File-Name';
+export const UPLOAD_MAX_BYTES = 512 * 1024 * 1024;
+
+export interface UploadedFile {
+  /** Where the host keeps the file (inside the workspace); use it as the study's data path. */
+  path: string;
+  /** The file's own name as the user picked it. */
+  name: string;
+  bytes: number;
+  sha256: string;
+}
