@@ -15,7 +15,7 @@ import type { HostContext } from './api/host.ts';
 import { WORKER_METHODS } from './api/worker-runner.ts';
 import { checkProgram, tryUnit } from './api/program.ts';
 import { listSamples, openStudy, saveStudy } from './api/studies.ts';
-import { recentWork, recordedRun, workspaceInfo } from './api/workspace.ts';
+import { exportRunMemo, fingerprintStudy, recentWork, recordedRun, workspaceInfo } from './api/workspace.ts';
 
 export { checkStudy, evaluateStudy, runDemo, type CallContext, type HostContext };
 
@@ -56,16 +56,18 @@ const METHODS: { [M in ApiMethod]: { args: Shape; run: Handler<M> } } = {
   'figure.map': {
     args: {
       object: {
-        studyPath: path, workers: 'integer',
+        runId: 'integer',
         axes: { object: { x: 'string', y: 'string' } },
         delta: 'number',
         cell: { list: { object: { key: 'string', value: 'number' } }, max: 50 },
         view: { oneOf: ['binned', 'units'] },
       },
-      optional: ['workers', 'axes', 'delta', 'cell', 'view'],
+      optional: ['axes', 'delta', 'cell', 'view'],
     },
     run: boundaryMap,
   },
+  'study.fingerprint': { args: { object: { study: 'unknown', baseDir: path }, optional: ['baseDir'] }, run: fingerprintStudy },
+  'run.exportMemo': { args: { object: { runId: 'integer', outDir: path, formats } }, run: exportRunMemo },
 };
 
 /** The methods this build implements (the contract's list, checked against the registry in tests). */

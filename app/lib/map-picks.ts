@@ -17,11 +17,11 @@ export interface MapPicks {
 
 export const NO_PICKS: MapPicks = { x: null, y: null, deltaIndex: null, cell: {}, units: false };
 
-export function mapArgs(studyPath: string, picks: MapPicks, deltas: readonly number[]): MapArgs {
+export function mapArgs(runId: number, picks: MapPicks, deltas: readonly number[]): MapArgs {
   const delta = picks.deltaIndex === null ? undefined : deltas[picks.deltaIndex];
   const cell = Object.entries(picks.cell).map(([key, value]) => ({ key, value }));
   return {
-    studyPath,
+    runId,
     ...(picks.x !== null && picks.y !== null ? { axes: { x: picks.x, y: picks.y } } : {}),
     ...(delta !== undefined ? { delta } : {}),
     ...(cell.length ? { cell } : {}),

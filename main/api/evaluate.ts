@@ -1,29 +1,21 @@
 // The study methods of the api: check a study, evaluate it, run the bundled demo. They adapt
-// files and the workspace to the pure pipeline (study.ts) and hold no analysis logic.
+// files and the workspace to the pipeline (main/pipeline) and hold no analysis logic.
 
 import { join, resolve } from 'node:path';
 import type {
   ApiResult, CheckArgs, CheckReport, DemoArgs, EvaluateArgs, EvaluateReport, OutputFormat,
 } from '../contract/api.ts';
 import type { Study } from '../contract/study.ts';
-import type { RawTable } from '../data/types.ts';
 import { Cancelled, validateSettings } from '../design/propensity.ts';
-import { unitsCsv } from '../output/units-csv.ts';
-import { writeFilesAtomically, type OutputFile } from '../output/write-files.ts';
-import { prepareUnits } from '../pipeline/prepare-units.ts';
-import { describeAtom } from '../estimate/composition.ts';
-import { lowerValidatedProgram } from '../rules/compile.ts';
-import type { Problem } from '../rules/types.ts';
+import { writeRun } from '../pipeline/record.ts';
+import { prepareStudy, runStudy } from '../pipeline/run-study.ts';
 import { describeProgram } from '../rules/wording.ts';
-import { openWorkspace } from '../store/workspace.ts';
-import type { DatasetColumnInput } from '../store/types.ts';
-import { SOFTWARE_VERSION } from '../store/software-version.ts';
-import { readStudyData, runStudy, type StudyRun } from '../pipeline/run-study.ts';
-import { figureData } from '../report/figure-data.ts';
-import { memoFiles } from '../report/memo-files.ts';
+import { studyFingerprint } from '../studyfile/fingerprint.ts';
 import { loadStudyFile } from '../studyfile/load.ts';
 import { SAMPLES_DIR } from '../resources.ts';
 import { refuse, type CallContext } from './context.ts';
+
+const cancelled = (e: Cancelled): ApiResult<never> => ({ ok: false, error: { kind: 'cancelled', problems: [{ path: '', message: e.message }] } });
 
 /** The memo formats this version can write (docs/cli.md: memo.pdf, memo.html, memo.docx, tables.xlsx). */
 export const AVAILABLE_MEMO_FORMATS: readonly OutputFormat[] = ['pdf', 'html', 'docx', 'xlsx'];
@@ -34,13 +26,11 @@ export async function checkStudy(args: CheckArgs, ctx: CallContext = {}): Promis
   return checkValidatedStudy(loaded.value.study, loaded.value.baseDir, ctx);
 }
 
-/** Read and map a validated study's data and report what will be used, estimating nothing. */
+/** Read, map and prepare a validated study's data (the same stages as evaluate) and report what will be used, estimating nothing. */
 export async function checkValidatedStudy(study: Study, baseDir: string, ctx: CallContext = {}): Promise<ApiResult<CheckReport>> {
-  const read = await readStudyData(study, { baseDir, ...ctx });
-  if (!read.ok) return refuse(read.problems);
-  const { mapped, table } = read.value;
-  const program = lowerValidatedProgram(study.program);
-  const prepared = prepareUnits(program, mapped, study.program.variables.map((v) => v.key), (a) => describeAtom(program, a));
+  const ready = await prepareStudy(study, { baseDir, ...ctx });
+  if (!ready.ok) return refuse(ready.problems);
+  const { read: { mapped, table }, prepared } = ready.value;
   return {
     ok: true,
     value: {
@@ -67,59 +57,6 @@ function withOverrides(study: Study, args: EvaluateArgs): ApiResult<Study> {
   return { ok: true, value: { ...study, settings } };
 }
 
-function datasetColumns(table: RawTable): DatasetColumnInput[] {
-  return table.columns.map((c) =>
-    c.texts
-      ? { name: c.name, kind: 'text' as const, values: Array.from({ length: table.rowCount }, (_, r) => c.texts![r] ?? (Number.isNaN(c.numbers[r]!) ? '' : String(c.numbers[r]))) }
-      : { name: c.name, kind: 'f64' as const, values: c.numbers },
-  );
-}
-
-/** Save the study version, the dataset (once per file hash) and the run in the workspace. */
-function recordInWorkspace(path: string, study: Study, run: StudyRun, startedAt: string): ApiResult<number> {
-  const opened = openWorkspace(path);
-  if (!opened.ok) return refuse(opened.problems);
-  const ws = opened.value;
-  try {
-    const existing = ws.listStudies();
-    if (!existing.ok) return refuse(existing.problems);
-    const prior = existing.value.find((s) => s.name === study.title);
-    const saved = ws.saveStudy({ ...(prior ? { studyId: prior.studyId } : {}), name: study.title, study });
-    if (!saved.ok) return refuse(saved.problems);
-    const datasets = ws.listDatasets();
-    if (!datasets.ok) return refuse(datasets.problems);
-    if (!datasets.value.some((d) => d.sha256 === run.table.source.sha256 && d.sheet === run.table.source.sheet)) {
-      const imported = ws.importDataset({
-        sourceName: run.table.source.fileName,
-        sheet: run.table.source.sheet,
-        sha256: run.table.source.sha256,
-        importedAt: startedAt,
-        rowNumbers: run.table.rowNumbers,
-        columns: datasetColumns(run.table),
-        notes: { headerRow: run.table.headerRow, notes: run.table.notes },
-      });
-      if (!imported.ok) return refuse(imported.problems);
-    }
-    const recorded = ws.recordRun({
-      studyId: saved.value.studyId,
-      studyVersion: saved.value.version,
-      studyJson: study,
-      settings: study.settings,
-      seed: study.settings.seed,
-      softwareVersion: SOFTWARE_VERSION,
-      dataSha256: run.results.study.dataSha256,
-      results: run.results,
-      timings: run.timings,
-      startedAt,
-      finishedAt: new Date().toISOString(),
-    });
-    if (!recorded.ok) return refuse(recorded.problems);
-    return { ok: true, value: recorded.value };
-  } finally {
-    ws.close();
-  }
-}
-
 export async function evaluateStudy(args: EvaluateArgs, ctx: CallContext = {}): Promise<ApiResult<EvaluateReport>> {
   const startedAt = new Date().toISOString();
   const formats = args.formats ?? [];
@@ -135,28 +72,27 @@ export async function evaluateStudy(args: EvaluateArgs, ctx: CallContext = {}): 
   try {
     run = await runStudy(study.value, { baseDir: loaded.value.baseDir, ...ctx, ...(args.workers !== undefined ? { workers: args.workers } : {}) });
   } catch (e) {
-    if (e instanceof Cancelled) return { ok: false, error: { kind: 'cancelled', problems: [{ path: '', message: e.message }] } };
+    if (e instanceof Cancelled) return cancelled(e);
     throw e;
   }
   if (!run.ok) return refuse(run.problems);
   const r = run.value;
-  const files: OutputFile[] = [
-    { name: 'results.json', content: JSON.stringify(r.results, null, 2) + '\n' },
-    { name: 'units.csv', content: unitsCsv({ ids: r.units.ids, z: r.units.z, d: r.units.d, deltas: r.results.settings.deltas, aps: r.units.aps }) },
-  ];
-  // The memo is rendered before anything is written, so results.json and the memo files are
-  // renamed into place together (write-files.ts) and always come from the same run.
-  if (formats.length) {
-    files.push(...await memoFiles(r.results, figureData(r), formats, { createdAt: startedAt, ...(ctx.onProgress ? { onProgress: ctx.onProgress } : {}) }));
+  let written;
+  try {
+    written = await writeRun(study.value, studyFingerprint(study.value, loaded.value.baseDir), r, {
+      outDir: resolve(args.outDir),
+      formats,
+      ...(args.workspacePath ? { workspacePath: resolve(args.workspacePath) } : {}),
+      startedAt,
+      ...(ctx.onProgress ? { onProgress: ctx.onProgress } : {}),
+      ...(ctx.signal ? { signal: ctx.signal } : {}),
+    });
+  } catch (e) {
+    if (e instanceof Cancelled) return cancelled(e);
+    throw e;
   }
-  const written = writeFilesAtomically(resolve(args.outDir), files);
-  let runId: number | null = null;
-  if (args.workspacePath) {
-    const recorded = recordInWorkspace(resolve(args.workspacePath), study.value, r, startedAt);
-    if (!recorded.ok) return recorded;
-    runId = recorded.value;
-  }
-  return { ok: true, value: { outDir: resolve(args.outDir), files: written, results: r.results, runId, timings: r.timings } };
+  if (!written.ok) return refuse(written.problems);
+  return { ok: true, value: { outDir: resolve(args.outDir), files: written.value.files, results: r.results, runId: written.value.runId, timings: r.timings } };
 }
 
 /** The bundled sample study end to end. */

@@ -1,131 +1,32 @@
-// Figures for the app's Map screen: the boundary-region map (main/report/boundary-map.ts) for a
-// saved study, with the analyst's choices (axes, delta, discrete cell, view) and what the
-// screen's pickers offer.
-//
-// The per-unit arrays a map needs are not kept after a run (results.json holds none), so the
-// study is run again here: same study, data and seed, the same numbers as the recorded run. To
-// keep a slider move from rerunning the whole study, the run is cached, keyed by the study
-// file's absolute path, the SHA-256 of the validated study (rule, columns, settings) and the
-// SHA-256 of every data file it reads — a changed rule, setting or data file gives a new key, so
-// a stale run is never drawn:
-//  - in memory: at most MAX_CACHED_RUNS (two: the study being looked at and one other), only
-//    what a map needs (the unit file as read is dropped), for in-process callers (CLI, tests);
-//  - in the workspace (map-run-store.ts, same bound), for hosts that run each call on a fresh
-//    worker thread (worker-runner.ts), where memory does not outlive the call.
-// Two calls for the same key at once share one run. (Reusing a recorded run instead would need
-// the per-unit APS arrays in the workspace database, which it does not store.)
+// Figures for the app's screens, drawn from a stored run (main/pipeline/stored-run.ts): the
+// boundary-region map (main/report/boundary-map.ts) with the analyst's choices (axes, delta,
+// discrete cell, view) and what the screen's pickers offer. The run's per-unit columns are kept
+// with the run in the workspace, so nothing is run again to draw: a slider move reads the stored
+// columns and recomputes only the map's grid.
 
-import { createHash } from 'node:crypto';
-import { createReadStream } from 'node:fs';
-import { isAbsolute, resolve } from 'node:path';
 import type { ApiResult, MapArgs, MapFigure } from '../contract/api.ts';
 import type { Study } from '../contract/study.ts';
 import type { BoundaryMapSpec } from '../report/charts/spec.ts';
-import { Cancelled } from '../design/propensity.ts';
 import { boundaryMapChoices, boundaryMapData, deltaIndex, discreteCodes, type MapRun } from '../report/boundary-map.ts';
 import type { BoundaryMapData } from '../report/model/figure-types.ts';
-import type { Problem } from '../rules/types.ts';
-import { runStudy } from '../pipeline/run-study.ts';
-import { loadStudyFile } from '../studyfile/load.ts';
-import { refuse, type CallContext } from './context.ts';
-import type { HostContext } from './host.ts';
-import { loadMapRun, storeMapRun } from './map-run-store.ts';
+import type { RunView } from '../report/run-view.ts';
+import { openStoredRun } from '../pipeline/record.ts';
+import type { Checked, Problem } from '../rules/types.ts';
+import { openWorkspace } from '../store/workspace.ts';
+import { refuse } from './context.ts';
+import { NO_WORKSPACE, workspaceLayout, type HostContext } from './host.ts';
 
-export const MAX_CACHED_RUNS = 2;
-
-const cached: Array<{ key: string; run: MapRun }> = []; // most recent first
-const inFlight = new Map<string, Promise<MapRunAnswer>>();
-let runsStarted = 0;
-
-type MapRunAnswer = { ok: true; run: MapRun } | { ok: false; problems: Problem[] } | { ok: false; cancelled: true };
-
-/** For tests and diagnostics: how many runs are cached and how many studies this module has run. */
-export function mapRunCacheInfo(): { entries: number; runsStarted: number } {
-  return { entries: cached.length, runsStarted };
-}
-
-export function clearMapRunCache(): void {
-  cached.length = 0;
-}
-
-function fileSha256(path: string, signal?: AbortSignal): Promise<string> {
-  return new Promise((done, fail) => {
-    const hash = createHash('sha256');
-    const stream = createReadStream(path, signal ? { signal } : {});
-    stream.on('data', (chunk) => hash.update(chunk));
-    stream.on('error', fail);
-    stream.on('end', () => done(hash.digest('hex')));
-  });
-}
-
-/** The cache key, or null when a data file cannot be read (the run then says what is wrong). */
-async function runKey(studyPath: string, study: Study, baseDir: string, signal?: AbortSignal): Promise<string | null> {
-  const at = (p: string) => (isAbsolute(p) ? p : resolve(baseDir, p));
-  const files = [study.data.path, ...(study.data.join ?? []).map((j) => j.path)].map(at);
+/** The stored run behind a figure, read from the host's workspace. */
+export function storedRunView(runId: number, ctx: HostContext): Checked<{ view: RunView; study: Study }> {
+  if (!ctx.workspaceDir) return { ok: false, problems: [{ path: '', message: NO_WORKSPACE }] };
+  const opened = openWorkspace(workspaceLayout(ctx.workspaceDir).workspacePath);
+  if (!opened.ok) return opened;
   try {
-    const hashes = await Promise.all(files.map((f) => fileSha256(f, signal)));
-    const studyHash = createHash('sha256').update(JSON.stringify(study)).digest('hex');
-    return [resolve(studyPath), studyHash, ...hashes].join('\n');
-  } catch {
-    return null;
-  }
-}
-
-async function computeRun(study: Study, baseDir: string, args: MapArgs, ctx: CallContext): Promise<MapRunAnswer> {
-  runsStarted++;
-  try {
-    const run = await runStudy(study, {
-      baseDir,
-      ...(ctx.onProgress ? { onProgress: ctx.onProgress } : {}),
-      ...(ctx.signal ? { signal: ctx.signal } : {}),
-      ...(args.workers !== undefined ? { workers: args.workers } : {}),
-    });
-    if (!run.ok) return { ok: false, problems: run.problems };
-    const { program, prepared, propensity, results } = run.value;
-    return { ok: true, run: { program, prepared, propensity, results } };
-  } catch (e) {
-    if (e instanceof Cancelled) return { ok: false, cancelled: true };
-    throw e;
-  }
-}
-
-function remember(key: string, run: MapRun): void {
-  cached.unshift({ key, run });
-  cached.length = Math.min(cached.length, MAX_CACHED_RUNS);
-}
-
-/** The run behind a map: from the cache (memory, then workspace), from a run under way for the same key, or a new one. */
-async function mapRun(studyPath: string, study: Study, baseDir: string, args: MapArgs, ctx: HostContext): Promise<MapRunAnswer> {
-  const key = await runKey(studyPath, study, baseDir, ctx.signal);
-  if (key === null) return computeRun(study, baseDir, args, ctx);
-  const hit = cached.findIndex((c) => c.key === key);
-  if (hit >= 0) {
-    const [entry] = cached.splice(hit, 1);
-    cached.unshift(entry!);
-    return { ok: true, run: entry!.run };
-  }
-  const stored = ctx.workspaceDir ? loadMapRun(ctx.workspaceDir, key, study) : null;
-  if (stored) { remember(key, stored); return { ok: true, run: stored }; }
-  const pending = inFlight.get(key);
-  if (pending) {
-    const shared = await pending;
-    // The run we waited for was cancelled by its own caller: this caller still wants one.
-    if (!shared.ok && 'cancelled' in shared && !ctx.signal?.aborted) return mapRun(studyPath, study, baseDir, args, ctx);
-    return shared;
-  }
-  const started = computeRun(study, baseDir, args, ctx);
-  inFlight.set(key, started);
-  try {
-    const answer = await started;
-    if (answer.ok) {
-      remember(key, answer.run);
-      if (ctx.workspaceDir) {
-        try { storeMapRun(ctx.workspaceDir, key, answer.run); } catch { /* a cache only: the next call runs again */ }
-      }
-    }
-    return answer;
+    const run = openStoredRun(opened.value, runId);
+    if (!run.ok) return { ok: false, problems: run.problems.map((p) => ({ ...p, path: 'args.runId' })) };
+    return { ok: true, value: { view: run.value.view, study: run.value.studyJson as Study } };
   } finally {
-    inFlight.delete(key);
+    opened.value.close();
   }
 }
 
@@ -214,17 +115,11 @@ function mapNote(map: BoundaryMapData): string | null {
 }
 
 export async function boundaryMap(args: MapArgs, ctx: HostContext = {}): Promise<ApiResult<MapFigure>> {
-  const loaded = loadStudyFile(args.studyPath);
-  if (!loaded.ok) return refuse(loaded.problems);
-  const { study, baseDir } = loaded.value;
+  const stored = storedRunView(args.runId, ctx);
+  if (!stored.ok) return refuse(stored.problems);
+  const { view: run, study } = stored.value;
   const early = mapArgProblems(study, args);
   if (early.length) return refuse(early);
-  const got = await mapRun(loaded.value.studyPath, study, baseDir, args, ctx);
-  if (!got.ok) {
-    if ('cancelled' in got) return { ok: false, error: { kind: 'cancelled', problems: [{ path: '', message: 'Drawing the map was cancelled.' }] } };
-    return refuse(got.problems);
-  }
-  const run = got.run;
   const late = cellValueProblems(run, args);
   if (late.length) return refuse(late);
   const view = args.view ?? 'binned';

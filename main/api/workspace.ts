@@ -2,8 +2,15 @@
 // runs recorded in the workspace file (main/store), and one recorded run's results.
 
 import { readFileSync } from 'node:fs';
-import { dirname, basename } from 'node:path';
-import type { ApiResult, RecentStudy, WorkspaceInfo, WorkspaceRecent, WorkspaceRun, WorkspaceRunArgs } from '../contract/api.ts';
+import { basename, dirname, resolve } from 'node:path';
+import type {
+  ApiResult, RecentStudy, RunExportedMemo, RunExportMemoArgs, StudyFingerprint, StudyFingerprintArgs, WorkspaceInfo, WorkspaceRecent, WorkspaceRun, WorkspaceRunArgs,
+} from '../contract/api.ts';
+import { Cancelled } from '../design/propensity.ts';
+import { exportStoredMemo } from '../pipeline/record.ts';
+import { studyFingerprint } from '../studyfile/fingerprint.ts';
+import { validateStudy } from '../studyfile/validate.ts';
+import { storedRunView } from './figures.ts';
 import type { Results } from '../contract/results.ts';
 import { writeFilesAtomically } from '../output/write-files.ts';
 import { openWorkspace } from '../store/workspace.ts';
@@ -69,7 +76,7 @@ export async function recentWork(_args: Record<string, never>, ctx: HostContext 
           .slice()
           .sort((a, b) => b.finishedAt.localeCompare(a.finishedAt))
           .slice(0, MAX_RECENT)
-          .map((r) => ({ runId: r.runId, studyName: nameOf.get(r.studyId) ?? `study ${r.studyId}`, finishedAt: r.finishedAt })),
+          .map((r) => ({ runId: r.runId, studyName: nameOf.get(r.studyId) ?? `study ${r.studyId}`, finishedAt: r.finishedAt, status: r.status })),
       },
     };
   } finally {
@@ -94,9 +101,38 @@ export async function recordedRun(args: WorkspaceRunArgs, ctx: HostContext = {})
         finishedAt: run.value.finishedAt,
         study: run.value.studyJson,
         results: run.value.results as Results,
+        status: run.value.status,
+        studySha256: run.value.studySha256,
+        outDir: run.value.outDir,
+        files: run.value.files,
+        hasUnits: run.value.hasUnits,
       },
     };
   } finally {
     ws.close();
   }
+}
+
+/** Write a stored run's memo again into a folder the analyst chose; the study is not run again. */
+export async function exportRunMemo(args: RunExportMemoArgs, ctx: HostContext = {}): Promise<ApiResult<RunExportedMemo>> {
+  const stored = storedRunView(args.runId, ctx);
+  if (!stored.ok) return refuse(stored.problems);
+  const outDir = resolve(args.outDir);
+  try {
+    const files = await exportStoredMemo(stored.value.view, outDir, {
+      formats: args.formats, startedAt: new Date().toISOString(),
+      ...(ctx.onProgress ? { onProgress: ctx.onProgress } : {}), ...(ctx.signal ? { signal: ctx.signal } : {}),
+    });
+    return { ok: true, value: { outDir, files } };
+  } catch (e) {
+    if (e instanceof Cancelled) return { ok: false, error: { kind: 'cancelled', problems: [{ path: '', message: 'Writing the memo was cancelled; no file was written.' }] } };
+    throw e;
+  }
+}
+
+/** The content hash of a study being edited, for the screens' "out of date" check. */
+export async function fingerprintStudy(args: StudyFingerprintArgs, _ctx: HostContext = {}): Promise<ApiResult<StudyFingerprint>> {
+  const checked = validateStudy(args.study);
+  if (!checked.ok) return { ok: true, value: { sha256: null } };
+  return { ok: true, value: { sha256: studyFingerprint(checked.value, args.baseDir ?? '/') } };
 }

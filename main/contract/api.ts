@@ -62,7 +62,7 @@ export const API_METHODS: readonly ApiMethod[] = [
   'study.check', 'study.evaluate', 'demo.run',
   'program.check', 'program.tryUnit', 'study.open', 'study.save', 'samples.list', 'data.preview', 'data.check',
   'workspace.info', 'workspace.recent', 'workspace.run', 'files.list', 'dialog.openFile', 'dialog.saveFile', 'memo.preview',
-  'figure.map',
+  'figure.map', 'study.fingerprint', 'run.exportMemo',
 ];
 
 // ---- The desktop app's methods (issue 6) ------------------------------------------------------
@@ -194,11 +194,32 @@ export interface WorkspaceInfo {
 }
 
 export interface RecentStudy { path: string; title: string; openedAt: string }
-export interface RecentRun { runId: number; studyName: string; finishedAt: string }
+export interface RecentRun { runId: number; studyName: string; finishedAt: string; status: 'writing' | 'complete' }
 export interface WorkspaceRecent { studies: RecentStudy[]; runs: RecentRun[] }
 
 export interface WorkspaceRunArgs { runId: number }
-export interface WorkspaceRun { runId: number; studyName: string; finishedAt: string; study: unknown; results: Results }
+export interface WorkspaceRun {
+  runId: number;
+  studyName: string;
+  finishedAt: string;
+  study: unknown;
+  results: Results;
+  /** 'writing': the run was interrupted while its files were written (they may be missing). */
+  status: 'writing' | 'complete';
+  /** Content hash of the study as run (compare with study.fingerprint of the open study: out of date when they differ). */
+  studySha256: string;
+  outDir: string;
+  files: string[];
+  /** Whether the run's per-unit columns are stored (its map and memo can be drawn without running again). */
+  hasUnits: boolean;
+}
+
+export interface StudyFingerprintArgs { study: unknown; baseDir?: string }
+/** The content hash of a study being edited (null while it is not a valid study). */
+export interface StudyFingerprint { sha256: string | null }
+
+export interface RunExportMemoArgs { runId: number; outDir: string; formats: OutputFormat[] }
+export interface RunExportedMemo { outDir: string; files: string[] }
 
 export interface FilesListArgs {
   dir: string;
@@ -218,8 +239,8 @@ export interface MemoPreviewArgs { path: string }
 export interface MemoPreview { path: string; html: string }
 
 export interface MapArgs {
-  studyPath: string;
-  workers?: number;
+  /** The stored run to draw (workspace.run); nothing is run again. */
+  runId: number;
   /** Continuous input keys across (x) and up (y); default: the pair with most units near the edge. */
   axes?: { x: string; y: string };
   /** One of the study's deltas; default: the headline delta. */
@@ -260,6 +281,8 @@ export interface AppApiMethods {
   'dialog.saveFile': { args: DialogArgs; result: DialogAnswer };
   'memo.preview': { args: MemoPreviewArgs; result: MemoPreview };
   'figure.map': { args: MapArgs; result: MapFigure };
+  'study.fingerprint': { args: StudyFingerprintArgs; result: StudyFingerprint };
+  'run.exportMemo': { args: RunExportMemoArgs; result: RunExportedMemo };
 }
 
 // Files the user hands over (project rule: the renderer never names an arbitrary path). In browser

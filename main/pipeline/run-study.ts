@@ -11,6 +11,7 @@ import { readTable } from '../data/read-table.ts';
 import type { RawTable } from '../data/types.ts';
 import { computePropensityParallel } from '../design/parallel/pool.ts';
 import type { PropensityResult, Progress } from '../design/propensity.ts';
+import { apsOnGrid } from '../design/grid-band.ts';
 import { resolutionWarnings } from '../design/resolution.ts';
 import { estimateApsIv, type ApsIvResult } from '../estimate/aps-iv.ts';
 import { balanceChecks } from '../estimate/balance.ts';
@@ -28,6 +29,7 @@ import { lowerValidatedProgram } from '../rules/compile.ts';
 import type { CompiledProgram } from '../rules/ir.ts';
 import type { Checked, Problem } from '../rules/types.ts';
 import { describeCondition, describeOffer, describeProgram } from '../rules/wording.ts';
+import type { GridBand } from '../report/run-view.ts';
 import { SOFTWARE_VERSION } from '../store/software-version.ts';
 
 export interface RunOptions {
@@ -53,6 +55,10 @@ export interface StudyRun {
   propensity: PropensityResult;
   /** The unit file as read (for the workspace). */
   table: RawTable;
+  /** SHA-256 of every file read (the unit file and each joined file), by path as the study names it. */
+  dataHashes: Record<string, string>;
+  /** The APS on synthetic points (the map's grid), with this run's engine, scales and seed. */
+  band: GridBand;
   timings: Record<string, number>;
 }
 
@@ -103,6 +109,48 @@ export async function readStudyData(study: Study, options: Pick<RunOptions, 'bas
 
 const input = (path: string, message: string): Checked<never> => ({ ok: false, problems: [{ path, message }] });
 
+/** What `check` and `evaluate` share: the data read, mapped and prepared for the rule. */
+export interface PreparedStudy {
+  read: ReadStudyData;
+  program: CompiledProgram;
+  prepared: PreparedUnits;
+}
+
+/** The largest exclusion reasons, for a message ("1,204 HH_INCOME is not a number; 3 ..."). */
+function topReasons(excluded: ReadonlyArray<{ reason: string; count: number }>, max = 3): string {
+  const sorted = [...excluded].sort((a, b) => b.count - a.count);
+  const shown = sorted.slice(0, max).map((e) => `${e.count.toLocaleString('en-US')} ${e.reason}`);
+  if (sorted.length > max) shown.push(`and ${sorted.length - max} other reason${sorted.length - max === 1 ? '' : 's'}`);
+  return shown.join('; ');
+}
+
+/**
+ * Read, map and prepare the study's units: the stages `check` and `evaluate` share, so `check`
+ * never says "ready" for a study `evaluate` would refuse. Refuses, with what to do, when no row is
+ * usable, when the rule can be evaluated for no unit, and when the design cannot identify an
+ * effect at all (a deterministic rule with no continuous input puts no unit near its edge at any
+ * delta: the APS is 0 or 1 for everyone — Narita and Yata's design needs a continuous input or a
+ * lottery).
+ */
+export async function prepareStudy(study: Study, options: Pick<RunOptions, 'baseDir' | 'onProgress' | 'signal'>): Promise<Checked<PreparedStudy>> {
+  const read = await readStudyData(study, options);
+  if (!read.ok) return read;
+  const { table, mapped } = read.value;
+  if (mapped.n === 0) {
+    return input(study.data.path, `0 usable rows: no row of ${table.source.fileName} could be used (${mapped.rowsRead.toLocaleString('en-US')} read): ${topReasons(mapped.excluded)}. Fix the data or the column names in the study.`);
+  }
+  const program = lowerValidatedProgram(study.program);
+  const describe = (atom: number) => describeAtom(program, atom);
+  const prepared = prepareUnits(program, mapped, study.program.variables.map((v) => v.key), describe);
+  if (prepared.data.n === 0) {
+    return input('program.rule', `0 usable rows: the rule cannot be evaluated for any unit (${topReasons([...mapped.excluded, ...prepared.excludedByRule])}). Check the lookup tables (a limit for every value) and divisions.`);
+  }
+  if (program.continuous.length === 0 && prepared.offerProbability.every((p) => p === 0 || p === 1)) {
+    return input('program.variables', 'This rule has no continuous input (every input is a category or a count held fixed), and it offers the benefit with certainty or not at all, so no unit can sit near its edge at any delta and the design cannot estimate an effect. What would: a criterion on a continuous input (an income, a score, an age in days), or a lottery among the eligible.');
+  }
+  return { ok: true, value: { read: read.value, program, prepared } };
+}
+
 /** Run a validated study end to end. Input problems come back as values; faults throw. */
 export async function runStudy(study: Study, options: RunOptions): Promise<Checked<StudyRun>> {
   const timings: Record<string, number> = {};
@@ -110,19 +158,12 @@ export async function runStudy(study: Study, options: RunOptions): Promise<Check
   let t = clock();
   const lap = (name: string) => { const now = clock(); timings[name] = Math.round(now - t); t = now; };
 
-  const read = await readStudyData(study, options);
-  if (!read.ok) return read;
-  lap('read');
-  const { table, mapped } = read.value;
-  if (mapped.n === 0) {
-    return input(study.data.path, `No row of ${table.source.fileName} could be used (${mapped.rowsRead} read): ${mapped.excluded.map((e) => `${e.count} ${e.reason}`).join('; ')}. Fix the data or the column names in the study.`);
-  }
-
-  const program = lowerValidatedProgram(study.program);
-  const describe = (atom: number) => describeAtom(program, atom);
-  const prepared = prepareUnits(program, mapped, study.program.variables.map((v) => v.key), describe);
+  const ready = await prepareStudy(study, options);
+  if (!ready.ok) return ready;
+  const read = ready.value.read;
+  const { table, mapped } = read;
+  const { program, prepared } = ready.value;
   const { data, cols, z } = prepared;
-  if (data.n === 0) return input('program.rule', 'The rule cannot be evaluated for any unit: check the lookup tables (a limit for every value) and divisions.');
   lap('prepare');
 
   const settings = { deltas: study.settings.deltas, draws: study.settings.draws, seed: study.settings.seed };
@@ -217,7 +258,7 @@ export async function runStudy(study: Study, options: RunOptions): Promise<Check
       rowsRead: mapped.rowsRead,
       rowsUsed: data.n,
       rowsExcluded,
-      joins: mapped.joins.map((j) => ({ ...j, sha256: read.value.joinHashes.get(j.source) ?? '' })),
+      joins: mapped.joins.map((j) => ({ ...j, sha256: read.joinHashes.get(j.source) ?? '' })),
       notes: mapped.notes,
     },
     program: {
@@ -263,6 +304,8 @@ export async function runStudy(study: Study, options: RunOptions): Promise<Check
       prepared,
       propensity: ps,
       table,
+      dataHashes: { [study.data.path]: table.source.sha256, ...Object.fromEntries((study.data.join ?? []).map((j) => [j.path, read.joinHashes.get(j.path) ?? ''])) },
+      band: apsOnGrid(program, program.continuous.map((v) => ps.scales.find((s) => s.key === v.key)?.scale ?? 1), settings.seed),
       timings,
     },
   };

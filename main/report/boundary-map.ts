@@ -16,26 +16,23 @@
 //    offered and not offered apart. Its type is not part of FigureData, and memo-files.ts refuses
 //    it at run time, so the memo cannot carry it.
 
-import { computeApsBlock } from '../design/aps.ts';
-import { ballPointSet } from '../design/ball-points.ts';
 import { verdicts } from '../rules/atoms.ts';
 import type { CompiledProgram, DesignColumns } from '../rules/ir.ts';
-import type { Results } from '../contract/results.ts';
-import type { PropensityResult } from '../design/propensity.ts';
-import type { PreparedUnits } from '../pipeline/prepare-units.ts';
 import { edges, fmt, mentions, niceRange, quantile, sortedFinite, variableAxis } from './figure-math.ts';
 import type {
   AxisVariable, BinnedBoundaryMap, BoundaryMapData, MapView, UnitPoint, UnitsBoundaryMap,
 } from './model/figure-types.ts';
 import { headlineIndex } from './model/memo-format.ts';
 import { suppressBinnedCounts, suppressCount } from './model/suppress.ts';
+import type { GridBand, RunView } from './run-view.ts';
 
-/** What a map needs of a run (a StudyRun fits): the rule, the inputs and offers, each delta's APS and crossings, the results. */
+/** What a map needs of a run (a RunView fits): the rule, the inputs and offers, each delta's APS and crossings, the results. */
 export interface MapRun {
-  program: CompiledProgram;
-  prepared: Pick<PreparedUnits, 'cols' | 'z'>;
-  propensity: Pick<PropensityResult, 'aps' | 'straddle'>;
-  results: Results;
+  program: RunView['program'];
+  prepared: Pick<RunView['prepared'], 'cols' | 'z'>;
+  propensity: RunView['propensity'];
+  results: RunView['results'];
+  band: GridBand;
 }
 
 export interface BoundaryMapOptions {
@@ -219,11 +216,9 @@ export function boundaryMapData(run: MapRun, opts: BoundaryMapOptions = {}): Bou
     discrete: cell.values.map((v) => new Float64Array(n).fill(v)),
   };
   const offer = verdicts(program, gridCols).offerProbability;
-  const scaleOf = new Map(results.scales.map((s) => [s.key, s.scale]));
-  const scales = program.continuous.map((v) => scaleOf.get(v.key) ?? 1);
   const draws = opts.draws ?? Math.min(1000, results.settings.draws);
   const delta = deltas[k]!;
-  const band = computeApsBlock(program, gridCols, scales, { deltas: [delta], draws, seed: results.settings.seed }, ballPointSet(d, draws, results.settings.seed)).aps[0]!;
+  const band = run.band(gridCols, delta, draws);
   const probability: number[][] = [];
   const inBand: boolean[][] = [];
   for (let iy = 0; iy < cells; iy++) {

@@ -1,4 +1,4 @@
-// The data behind the memo's figures, from one run's per-unit arrays (StudyRun). Pure: values in,
+// The data behind the memo's figures, from one run's per-unit arrays (RunView: a run just computed or read back from the workspace). Pure: values in,
 // values out. Counts are suppressed here (suppress.ts, docs/method.md §7) before they leave, and a
 // mean over a bin with a hidden count is dropped, so a figure never shows a small cell.
 //
@@ -18,10 +18,10 @@
 import { atomTruthColumn, treeColumn } from '../rules/atoms.ts';
 import { evalColumn, gradColumn } from '../rules/evaluate-columns.ts';
 import type { CompiledProgram, DesignColumns } from '../rules/ir.ts';
-import type { StudyRun } from '../pipeline/run-study.ts';
 import { boundaryMapData } from './boundary-map.ts';
 import { mentions, niceStep } from './figure-math.ts';
 import type { BinnedSeries, DensityFigureData, FigureData, SignedDistanceData } from './model/figure-types.ts';
+import type { RunView } from './run-view.ts';
 import { dependentFigure, suppressBinnedCounts, suppressCount } from './model/suppress.ts';
 
 export { boundaryMapData, boundaryMapChoices, type BoundaryMapOptions, type MapRun } from './boundary-map.ts';
@@ -102,7 +102,7 @@ function binnedSeries(x: Float64Array, y: ArrayLike<number>, window: number, bin
   };
 }
 
-export function signedDistanceData(run: StudyRun, opts: FigureDataOptions = {}): SignedDistanceData | null {
+export function signedDistanceData(run: RunView, opts: FigureDataOptions = {}): SignedDistanceData | null {
   const { program, prepared, results } = run;
   const scaleOf = new Map(results.scales.map((s) => [s.key, s.scale]));
   const scales = program.continuous.map((v) => scaleOf.get(v.key) ?? 1);
@@ -120,7 +120,7 @@ export function signedDistanceData(run: StudyRun, opts: FigureDataOptions = {}):
   };
 }
 
-export function densityData(run: StudyRun): DensityFigureData[] {
+export function densityData(run: RunView): DensityFigureData[] {
   const { program, prepared, results } = run;
   const threshold = results.settings.smallCellMax;
   return results.density.flatMap((check, k): DensityFigureData[] => {
@@ -151,7 +151,7 @@ export function densityData(run: StudyRun): DensityFigureData[] {
   });
 }
 
-export function balanceAllData(run: StudyRun): FigureData['balanceAll'] {
+export function balanceAllData(run: RunView): FigureData['balanceAll'] {
   const { prepared, results } = run;
   const names = [...new Set(results.balance.map((b) => b.covariate))];
   const threshold = results.settings.smallCellMax;
@@ -173,7 +173,7 @@ export function balanceAllData(run: StudyRun): FigureData['balanceAll'] {
 }
 
 /** Every figure's data for one run. */
-export function figureData(run: StudyRun, opts: FigureDataOptions = {}): FigureData {
+export function figureData(run: RunView, opts: FigureDataOptions = {}): FigureData {
   // The memo's map: default axes, headline delta, most common cell, binned counts (never individual units).
   const map = boundaryMapData(run, {
     view: 'binned',

@@ -3,6 +3,7 @@
 // (file names from docs/cli.md: memo.pdf, memo.html, memo.docx, tables.xlsx). Progress: stage
 // 'memo', one step for the figures and one per format.
 
+import { Cancelled } from '../design/propensity.ts';
 import type { OutputFormat, ProgressEvent } from '../contract/api.ts';
 import type { Results } from '../contract/results.ts';
 import type { OutputFile } from '../output/write-files.ts';
@@ -32,6 +33,8 @@ const RENDERERS: Readonly<Record<OutputFormat, (doc: Document, figures: Map<stri
 
 export interface MemoFilesOptions extends MemoOptions {
   onProgress?: (p: ProgressEvent) => void;
+  /** Cancel between figures and between formats (a cancelled run writes nothing). */
+  signal?: AbortSignal;
 }
 
 /**
@@ -56,7 +59,7 @@ function refusePrivateDocument(doc: Document): void {
 }
 
 /** Render an already built memo document in the chosen formats. */
-export async function renderMemoDocument(doc: Document, formats: readonly OutputFormat[], onProgress?: (p: ProgressEvent) => void): Promise<OutputFile[]> {
+export async function renderMemoDocument(doc: Document, formats: readonly OutputFormat[], onProgress?: (p: ProgressEvent) => void, signal?: AbortSignal): Promise<OutputFile[]> {
   refusePrivateDocument(doc);
   const chosen = [...new Set(formats)];
   if (!chosen.length) return [];
@@ -64,10 +67,11 @@ export async function renderMemoDocument(doc: Document, formats: readonly Output
   const total = chosen.length + (needFigures ? 1 : 0);
   let done = 0;
   onProgress?.({ stage: 'memo', done, total });
-  const figures = needFigures ? await renderFigures(doc) : new Map<string, Buffer>();
+  const figures = needFigures ? await renderFigures(doc, undefined, signal) : new Map<string, Buffer>();
   if (needFigures) onProgress?.({ stage: 'memo', done: ++done, total });
   const files: OutputFile[] = [];
   for (const f of chosen) {
+    if (signal?.aborted) throw new Cancelled();
     files.push({ name: MEMO_FILE_NAMES[f], content: await RENDERERS[f](doc, figures) });
     onProgress?.({ stage: 'memo', done: ++done, total });
   }
@@ -79,5 +83,5 @@ export async function memoFiles(results: Results, figures: FigureData, formats: 
   refusePrivateFigures(figures);
   if (!formats.length) return [];
   const doc = buildMemo(results, figures, { createdAt: opts.createdAt, ...(opts.author ? { author: opts.author } : {}) });
-  return renderMemoDocument(doc, formats, opts.onProgress);
+  return renderMemoDocument(doc, formats, opts.onProgress, opts.signal);
 }

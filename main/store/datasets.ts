@@ -123,9 +123,9 @@ export function importDataset(ctx: StoreContext, meta: DatasetInput, opts?: Impo
 
   return write(ctx, `store the dataset from "${meta.sourceName}"`, () => {
     const datasetId = Number(ctx.db.prepare(
-      `INSERT INTO datasets (source_name, sheet, sha256, imported_at, stored_at, row_count, chunk_rows, notes, complete)
-       VALUES (?, ?, ?, ?, ?, ?, ?, ?, 0)`,
-    ).run(meta.sourceName, meta.sheet, meta.sha256.toLowerCase(), meta.importedAt, ctx.now(), rowCount, chunkRows, notesText).lastInsertRowid);
+      `INSERT INTO datasets (source_name, sheet, sha256, imported_at, stored_at, row_count, chunk_rows, notes, complete, role)
+       VALUES (?, ?, ?, ?, ?, ?, ?, ?, 0, ?)`,
+    ).run(meta.sourceName, meta.sheet, meta.sha256.toLowerCase(), meta.importedAt, ctx.now(), rowCount, chunkRows, notesText, opts?.role ?? 'source').lastInsertRowid);
 
     const insertColumn = ctx.db.prepare('INSERT INTO dataset_columns (dataset_id, position, name, kind) VALUES (?, ?, ?, ?)');
     columns.forEach((c, position) => insertColumn.run(datasetId, position, c.name, c.kind));
@@ -223,10 +223,11 @@ export function loadDataset(ctx: StoreContext, datasetId: unknown): Checked<Stor
 
 export function listDatasets(ctx: StoreContext): Checked<DatasetSummary[]> {
   return read(ctx, 'list the stored datasets', () => {
-    const rows = ctx.db.prepare('SELECT * FROM datasets WHERE complete = 1 ORDER BY stored_at DESC, id DESC').all() as DatasetRow[];
+    // The per-unit columns of runs are datasets too (role 'run-units'), reached through their run.
+    const rows = ctx.db.prepare("SELECT * FROM datasets WHERE complete = 1 AND role = 'source' ORDER BY stored_at DESC, id DESC").all() as DatasetRow[];
     const cols = ctx.db.prepare(
       `SELECT c.dataset_id, c.name, c.kind FROM dataset_columns c JOIN datasets d ON d.id = c.dataset_id
-        WHERE d.complete = 1 ORDER BY c.dataset_id, c.position`,
+        WHERE d.complete = 1 AND d.role = 'source' ORDER BY c.dataset_id, c.position`,
     ).all() as Array<{ dataset_id: number; name: string; kind: ColumnKind }>;
     const byDataset = new Map<number, Array<{ name: string; kind: ColumnKind }>>();
     for (const c of cols) {

@@ -118,6 +118,36 @@ export const MIGRATIONS: readonly Migration[] = [
       CREATE INDEX runs_by_study ON runs(study_id, id);
     `,
   },
+  {
+    version: 4,
+    description: 'stored runs: status (writing, complete), content hashes, output files, per-unit columns; immutable once complete',
+    sql: `
+      -- 'source': a file the analyst imported; 'run-units': the per-unit columns of one run.
+      ALTER TABLE datasets ADD COLUMN role TEXT NOT NULL DEFAULT 'source' CHECK (role IN ('source', 'run-units'));
+
+      -- A run is recorded as 'writing' before its files are written and marked 'complete' after,
+      -- so a kill in between leaves a run that says it is incomplete (never files with no run).
+      ALTER TABLE runs ADD COLUMN status TEXT NOT NULL DEFAULT 'complete' CHECK (status IN ('writing', 'complete'));
+      ALTER TABLE runs ADD COLUMN study_sha256 TEXT NOT NULL DEFAULT '';
+      ALTER TABLE runs ADD COLUMN data_hashes TEXT NOT NULL DEFAULT '{}' CHECK (json_valid(data_hashes));
+      ALTER TABLE runs ADD COLUMN out_dir TEXT NOT NULL DEFAULT '';
+      ALTER TABLE runs ADD COLUMN files TEXT NOT NULL DEFAULT '[]' CHECK (json_valid(files));
+      ALTER TABLE runs ADD COLUMN units_dataset_id INTEGER REFERENCES datasets(id);
+
+      -- A finished run never changes; an unfinished one may only be finished (status and files).
+      CREATE TRIGGER runs_complete_is_final BEFORE UPDATE ON runs WHEN OLD.status = 'complete'
+      BEGIN SELECT RAISE(ABORT, 'a finished run cannot be changed'); END;
+      CREATE TRIGGER runs_writing_finishes_only BEFORE UPDATE OF id, study_id, study_version, study_json, settings, seed,
+        software_version, data_sha256, results, timings, started_at, finished_at, recorded_at, study_sha256, data_hashes,
+        out_dir, units_dataset_id ON runs WHEN OLD.status = 'writing'
+      BEGIN SELECT RAISE(ABORT, 'a run can only be marked finished'); END;
+      CREATE TRIGGER runs_complete_kept BEFORE DELETE ON runs WHEN OLD.status = 'complete'
+      BEGIN SELECT RAISE(ABORT, 'a finished run cannot be deleted'); END;
+      CREATE TRIGGER run_units_kept BEFORE DELETE ON datasets
+        WHEN EXISTS (SELECT 1 FROM runs WHERE units_dataset_id = OLD.id)
+      BEGIN SELECT RAISE(ABORT, 'the per-unit columns of a run cannot be deleted'); END;
+    `,
+  },
 ];
 
 /** The newest schema this version of Fenceline reads and writes. */

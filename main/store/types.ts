@@ -100,6 +100,8 @@ export interface StoreProgress { stage: 'store'; done: number; total: number }
 
 export interface ImportOptions {
   onProgress?: (p: StoreProgress) => void;
+  /** 'source' (default): a file the analyst imported; 'run-units': a run's per-unit columns. */
+  role?: 'source' | 'run-units';
 }
 
 // ---- Runs -------------------------------------------------------------------------------
@@ -122,6 +124,8 @@ export interface RunInput {
 
 export interface RunSummary {
   runId: number;
+  /** 'writing': recorded, files not all written yet (a run left so was interrupted); 'complete'. */
+  status: 'writing' | 'complete';
   studyId: number;
   studyVersion: number;
   seed: number;
@@ -137,6 +141,24 @@ export interface StoredRun extends RunSummary {
   settings: unknown;
   results: unknown;
   timings: Record<string, number>;
+  /** SHA-256 of the study as run (its content, paths resolved); '' for runs recorded before schema 4. */
+  studySha256: string;
+  /** SHA-256 of each data file read, by the path the study names. */
+  dataHashes: Record<string, string>;
+  /** Folder the run's files were written to, and their paths ('' and [] when none). */
+  outDir: string;
+  files: string[];
+  /** Whether the run's per-unit columns are stored (figures and exports need them). */
+  hasUnits: boolean;
+}
+
+/** A run recorded before its files are written (status 'writing'), with its per-unit columns. */
+export interface BeginRunInput extends RunInput {
+  studySha256: string;
+  dataHashes: Record<string, string>;
+  outDir: string;
+  /** The run's per-unit columns, stored with the existing column codec (one value per unit). */
+  units: { rowNumbers: Int32Array; columns: DatasetColumnInput[] };
 }
 
 // ---- The workspace ----------------------------------------------------------------------
@@ -164,7 +186,15 @@ export interface Workspace {
   deleteDataset(datasetId: number): Checked<void>;
 
   recordRun(input: RunInput): Checked<number>;
+  /** Record a run as 'writing' with its per-unit columns, in one transaction; then write its files, then finishRun. */
+  beginRun(input: BeginRunInput): Checked<number>;
+  /** Mark a 'writing' run complete with the files written. */
+  finishRun(runId: number, files: string[]): Checked<void>;
+  /** Remove a run that never finished (its files could not be written), with its per-unit columns. */
+  discardUnfinishedRun(runId: number): Checked<void>;
   getRun(runId: number): Checked<StoredRun>;
+  /** The run's per-unit columns (problems when the run has none stored). */
+  loadRunUnits(runId: number): Checked<StoredDataset>;
   listRuns(studyId?: number): Checked<RunSummary[]>;
 
   /** SQLite's full integrity check; problems name what is damaged. Slow on big files. */

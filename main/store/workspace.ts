@@ -193,7 +193,11 @@ export function openWorkspace(path: string, opts: OpenOptions = {}): Checked<Wor
     deleteDataset: (datasetId) => datasets.deleteDataset(ctx, datasetId),
 
     recordRun: (input) => runs.recordRun(ctx, input),
+    beginRun: (input) => runs.beginRun(ctx, input),
+    finishRun: (runId, files) => runs.finishRun(ctx, runId, files),
+    discardUnfinishedRun: (runId) => runs.discardUnfinishedRun(ctx, runId),
     getRun: (runId) => runs.getRun(ctx, runId),
+    loadRunUnits: (runId) => runs.loadRunUnits(ctx, runId),
     listRuns: (studyId) => runs.listRuns(ctx, studyId),
 
     checkIntegrity: () => integrityProblems(ctx),

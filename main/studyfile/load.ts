@@ -5,6 +5,7 @@ import { readFileSync, statSync } from 'node:fs';
 import { basename, dirname, resolve } from 'node:path';
 import type { Study } from '../contract/study.ts';
 import type { Checked } from '../rules/types.ts';
+import { studyFingerprint } from './fingerprint.ts';
 import { validateStudy } from './validate.ts';
 
 const MAX_STUDY_BYTES = 20 * 2 ** 20;
@@ -15,6 +16,8 @@ export interface LoadedStudy {
   studyPath: string;
   /** Folder that relative paths in the study are resolved against. */
   baseDir: string;
+  /** The study's content hash (fingerprint.ts), computed once here. */
+  sha256: string;
 }
 
 /** Line and column (1-based) of a character offset. */
@@ -74,5 +77,5 @@ export function loadStudyFile(studyPath: string): Checked<LoadedStudy> {
   }
   const study = validateStudy(input, programPath ? { programPath } : {});
   if (!study.ok) return study;
-  return { ok: true, value: { study: study.value, studyPath: abs, baseDir } };
+  return { ok: true, value: { study: study.value, studyPath: abs, baseDir, sha256: studyFingerprint(study.value, baseDir) } };
 }

@@ -1,24 +1,38 @@
-// figure.map through callApi, as the Map screen calls it: the analyst's choices are checked
-// (their types by the registry's Shapes, their fit to the study here, each refusal at its field
-// in plain words), the pickers get what they need, and the run behind the map is cached so a
-// slider move does not run the study again. The fixture's rule is written out in
-// tests/report/memo-fixture.ts; suppression follows docs/method.md §7 (counts 1–10 hidden).
+// figure.map through callApi, as the Map screen calls it: the map of a stored run (the run's
+// per-unit columns are kept in the workspace), the analyst's choices checked (their types by the
+// registry's Shapes, their fit to the study here, each refusal at its field in plain words), and
+// the pickers get what they need. Nothing runs the study again: the data file can be gone. The
+// fixture's rule is written out in tests/report/memo-fixture.ts; suppression follows
+// docs/method.md §7 (counts 1–10 hidden).
 
-import { mkdtempSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { dirname, join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { callApi } from '../../main/api.ts';
-import { clearMapRunCache, MAX_CACHED_RUNS, mapRunCacheInfo } from '../../main/api/figures.ts';
-import { MAX_STORED_RUNS, mapRunDir } from '../../main/api/map-run-store.ts';
-import type { MapFigure } from '../../main/contract/api.ts';
-import { fixtureCsv, writeFixture } from '../report/memo-fixture.ts';
+import { workspaceLayout } from '../../main/api/host.ts';
+import type { EvaluateReport, MapFigure } from '../../main/contract/api.ts';
+import { runStudy } from '../../main/pipeline/run-study.ts';
+import { boundaryMapData } from '../../main/report/boundary-map.ts';
+import { loadStudyFile } from '../../main/studyfile/load.ts';
+import { writeFixture } from '../report/memo-fixture.ts';
 import { writeThreeInputFixture } from '../report/map-fixture.ts';
 
 let studyPath: string;
-beforeAll(() => { clearMapRunCache(); studyPath = writeFixture(2500); });
+let runId: number;
+const workspaceDir = mkdtempSync(join(tmpdir(), 'fenceline-ws-'));
+const ctx = { workspaceDir };
 
-const map = (args: Record<string, unknown>) => callApi('figure.map', { studyPath, workers: 0, ...args });
+/** Evaluate a study into the test workspace and return its run id. */
+async function recordRun(path: string): Promise<number> {
+  const r = await callApi('study.evaluate', { studyPath: path, outDir: join(dirname(path), 'out'), formats: [], workspacePath: workspaceLayout(workspaceDir).workspacePath, workers: 0 });
+  expect(r, JSON.stringify(r.ok ? '' : r.error)).toMatchObject({ ok: true });
+  return (r as { value: EvaluateReport }).value.runId!;
+}
+
+beforeAll(async () => { studyPath = writeFixture(2500); runId = await recordRun(studyPath); });
+
+const map = (args: Record<string, unknown>) => callApi('figure.map', { runId, ...args }, ctx);
 const figure = async (args: Record<string, unknown>): Promise<MapFigure> => {
   const r = await map(args);
   expect(r, JSON.stringify(r.ok ? '' : r.error)).toMatchObject({ ok: true });
@@ -40,10 +54,8 @@ describe('figure.map refuses choices of the wrong shape before any work', () => 
     [{ view: 'points' }, 'args.view', /one of binned, units/],
     [{ colour: 'red' }, 'args.colour', /no field "colour"/],
   ])('%j → %s', async (args, path, message) => {
-    const before = mapRunCacheInfo().runsStarted;
     const problems = await refusal(args);
     expect(problems).toEqual([{ path, message: expect.stringMatching(message) }]);
-    expect(mapRunCacheInfo().runsStarted).toBe(before);
   });
 });
 
@@ -91,7 +103,7 @@ describe('figure.map draws the chosen map and says what the pickers offer', () =
     expect(f.note).toMatch(/Private view: each mark is one unit .*never put in the memo or exported files/);
   });
   it('with three continuous inputs the third is held at its median, and the note says so', async () => {
-    const r = await callApi('figure.map', { studyPath: writeThreeInputFixture(800), workers: 0, axes: { x: 'y', y: 'w' } });
+    const r = await callApi('figure.map', { runId: await recordRun(writeThreeInputFixture(800)), axes: { x: 'y', y: 'w' } }, ctx);
     expect(r.ok).toBe(true);
     const f = (r as { value: MapFigure }).value;
     expect(f.note).toMatch(/Need score held at [\d.]+ points \(median near the edge\); the shading and the band hold the other continuous input at the median named\./);
@@ -99,50 +111,19 @@ describe('figure.map draws the chosen map and says what the pickers offer', () =
   });
 });
 
-describe('the run behind the map is cached', () => {
-  it('runs the study once for several choices, again when the data change, and keeps at most two runs', async () => {
-    clearMapRunCache();
-    const start = mapRunCacheInfo().runsStarted;
-    await figure({});
-    await Promise.all([figure({ delta: 0.05 }), figure({ axes: { x: 'age', y: 'income' } })]);
-    await figure({ delta: 0.2, view: 'units' });
-    expect(mapRunCacheInfo().runsStarted - start).toBe(1);
-    // Same path, new data: a new run (an edited workbook is never drawn from a stale run).
-    const csv = join(dirname(studyPath), 'cases.csv');
-    const old = readFileSync(csv, 'utf8');
-    writeFileSync(csv, fixtureCsv(2500, 12));
-    const again = await figure({});
-    expect(mapRunCacheInfo().runsStarted - start).toBe(2);
-    writeFileSync(csv, old);
-    await figure({});
-    expect(mapRunCacheInfo().runsStarted - start).toBe(2); // the first data's run is still cached
-    expect(again.spec).not.toBeNull();
-    await callApi('figure.map', { studyPath: writeThreeInputFixture(300), workers: 0 });
-    expect(mapRunCacheInfo().entries).toBe(MAX_CACHED_RUNS);
+describe('the map is drawn from the stored run', () => {
+  it('is the same map as from the run just computed, without the data file and without running the study', async () => {
+    const loaded = loadStudyFile(studyPath);
+    if (!loaded.ok) throw new Error('fixture study');
+    const fresh = await runStudy(loaded.value.study, { baseDir: loaded.value.baseDir, workers: 0 });
+    if (!fresh.ok) throw new Error('fixture run');
+    const expected = boundaryMapData(fresh.value, { delta: 0.05, view: 'units' }).map!;
+    rmSync(join(dirname(studyPath), 'cases.csv')); // a re-run would now fail: the map must come from the workspace
+    const f = await figure({ delta: 0.05, view: 'units' });
+    expect(f.spec!.units).toEqual({ offered: expected.units.offered, notOffered: expected.units.notOffered });
+    expect(f.spec!.grid).toEqual(expected.grid);
   });
-});
-
-describe('the run is also kept in the workspace, for hosts that answer each call on a fresh thread', () => {
-  it('a call with an empty memory cache draws from the stored run, the same map, without running the study', async () => {
-    const workspaceDir = mkdtempSync(join(tmpdir(), 'fenceline-ws-'));
-    clearMapRunCache();
-    const start = mapRunCacheInfo().runsStarted;
-    const args = { studyPath, workers: 0, delta: 0.05, view: 'binned' };
-    const first = await callApi('figure.map', args, { workspaceDir });
-    expect(mapRunCacheInfo().runsStarted - start).toBe(1);
-    clearMapRunCache(); // as a new worker thread starts with nothing in memory
-    const second = await callApi('figure.map', args, { workspaceDir });
-    expect(mapRunCacheInfo().runsStarted - start).toBe(1);
-    expect(second).toEqual(first);
-    // A damaged file is not trusted: it is removed and the study runs again.
-    const [file] = readdirSync(mapRunDir(workspaceDir));
-    writeFileSync(join(mapRunDir(workspaceDir), file!), 'not a run');
-    clearMapRunCache();
-    const third = await callApi('figure.map', args, { workspaceDir });
-    expect(mapRunCacheInfo().runsStarted - start).toBe(2);
-    expect(third).toEqual(first);
-    // At most two runs are kept.
-    for (const n of [300, 301]) await callApi('figure.map', { studyPath: writeThreeInputFixture(n), workers: 0 }, { workspaceDir });
-    expect(readdirSync(mapRunDir(workspaceDir)).filter((f) => f.endsWith('.run'))).toHaveLength(MAX_STORED_RUNS);
+  it('refuses a run that is not in the workspace, at its field', async () => {
+    expect(await refusal({ runId: 999 })).toEqual([{ path: 'args.runId', message: expect.stringMatching(/no run with id 999/) }]);
   });
 });

@@ -7,12 +7,12 @@ const DELTAS = [0.05, 0.1, 0.2];
 
 describe('map picks → figure.map arguments', () => {
   it('asks for the defaults when nothing is chosen', () => {
-    expect(mapArgs('/s.json', NO_PICKS, DELTAS)).toEqual({ studyPath: '/s.json' });
+    expect(mapArgs(7, NO_PICKS, DELTAS)).toEqual({ runId: 7 });
   });
   it('sends the axes, the delta of the slider position, the chosen codes and the private view', () => {
     const picks = { x: 'age', y: 'income', deltaIndex: 2, cell: { size: 3 }, units: true };
-    expect(mapArgs('/s.json', picks, DELTAS)).toEqual({
-      studyPath: '/s.json', axes: { x: 'age', y: 'income' }, delta: 0.2, cell: [{ key: 'size', value: 3 }], view: 'units',
+    expect(mapArgs(7, picks, DELTAS)).toEqual({
+      runId: 7, axes: { x: 'age', y: 'income' }, delta: 0.2, cell: [{ key: 'size', value: 3 }], view: 'units',
     });
   });
   it('takes the engine’s defaults as the controls’ positions once a map is drawn', () => {

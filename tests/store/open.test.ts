@@ -211,7 +211,7 @@ describe('refusals (one message, no exception)', () => {
     const raw = new Database(old);
     applyMigrations(raw, 1);
     raw.close();
-    expect(problemsOf(openWorkspace(old, { readonly: true }))[0]!.message).toMatch(/older Fenceline \(schema 1; this version uses 3\).*Open it once without read-only/);
+    expect(problemsOf(openWorkspace(old, { readonly: true }))[0]!.message).toMatch(new RegExp(`older Fenceline \\(schema 1; this version uses ${SCHEMA_VERSION}\\).*Open it once without read-only`));
   });
 
   it('refuses a folder, a path in a missing folder, and an empty path', () => {

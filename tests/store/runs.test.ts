@@ -1,5 +1,6 @@
 // Runs: what was run, on which data, with which software and seed, and what came out.
 
+import Database from 'better-sqlite3';
 import { describe, expect, it } from 'vitest';
 import type { RunInput } from '../../main/store/types.ts';
 import { must, openFresh, problemsOf, SHA, tempWorkspacePath } from './helpers.ts';
@@ -31,8 +32,10 @@ describe('runs', () => {
     const again = openFresh(file);
     const back = must(again.getRun(runId));
     again.close();
-    const { recordedAt, runId: id, ...rest } = back;
+    const { recordedAt, runId: id, status, studySha256, dataHashes, outDir, files, hasUnits, ...rest } = back;
     expect(id).toBe(runId);
+    // recordRun records results only: a finished run with no files and no per-unit columns
+    expect({ status, studySha256, dataHashes, outDir, files, hasUnits }).toEqual({ status: 'complete', studySha256: '', dataHashes: {}, outDir: '', files: [], hasUnits: false });
     expect(recordedAt).toMatch(/^2025-01-01T00:00:\d\d\.000Z$/);
     expect(rest).toEqual(input); // toEqual treats NaN as equal to NaN
     const est = (back.results as { estimates: Array<{ se: number }> }).estimates;
@@ -88,5 +91,68 @@ describe('runs', () => {
     expect(problemsOf(ws.getRun(5))[0]!.message).toMatch(/no run with id 5/);
     expect(problemsOf(ws.listRuns(-1))[0]!.path).toBe('studyId');
     ws.close();
+  });
+});
+
+describe('stored runs (schema 4): recorded before their files, immutable once finished', () => {
+  const units = () => ({
+    rowNumbers: Int32Array.from([2, 3, 5]),
+    columns: [
+      { name: 'id', kind: 'text' as const, values: ['A-1', 'A-2', 'A-4'] },
+      { name: 'aps:0', kind: 'f64' as const, values: Float64Array.from([0, 0.25, Number.NaN]) },
+      { name: 'straddle:0', kind: 'i32' as const, values: Int32Array.from([0, 1, -1]) },
+    ],
+  });
+  const begin = (ws: ReturnType<typeof openFresh>) => {
+    const { studyId } = must(ws.saveStudy({ name: 'Winter credit', study }));
+    return must(ws.beginRun({ ...runOf(studyId, 1), studySha256: SHA, dataHashes: { 'roster.xlsx': SHA }, outDir: '/tmp/out', units: units() }));
+  };
+
+  it('a run begun is "writing" with its per-unit columns; finished, it lists its files', () => {
+    const file = tempWorkspacePath();
+    const ws = openFresh(file);
+    const runId = begin(ws);
+    expect(must(ws.getRun(runId))).toMatchObject({ status: 'writing', files: [], hasUnits: true, outDir: '/tmp/out', dataHashes: { 'roster.xlsx': SHA } });
+    must(ws.finishRun(runId, ['/tmp/out/results.json']));
+    ws.close();
+    const again = openFresh(file);
+    expect(must(again.getRun(runId))).toMatchObject({ status: 'complete', files: ['/tmp/out/results.json'] });
+    const back = must(again.loadRunUnits(runId));
+    expect(back.rowNumbers).toEqual(Int32Array.from([2, 3, 5]));
+    expect(back.columns).toEqual(units().columns);
+    // the run's columns are not listed among the analyst's imported datasets
+    expect(must(again.listDatasets())).toEqual([]);
+    expect(must(again.listRuns()).map((r) => r.status)).toEqual(['complete']);
+    again.close();
+  });
+
+  it('a finished run cannot be changed, finished again, removed, nor its columns deleted', () => {
+    const ws = openFresh();
+    const runId = begin(ws);
+    must(ws.finishRun(runId, []));
+    expect(problemsOf(ws.finishRun(runId, ['x']))[0]!.message).toMatch(/not waiting to be finished/);
+    expect(problemsOf(ws.discardUnfinishedRun(runId))[0]!.message).toMatch(/finished or absent/);
+    const raw = ws.path;
+    ws.close();
+    const db = new Database(raw);
+    expect(() => db.prepare("UPDATE runs SET results = '{}' WHERE id = ?").run(runId)).toThrow(/cannot be changed/);
+    expect(() => db.prepare('DELETE FROM runs WHERE id = ?').run(runId)).toThrow(/cannot be deleted/);
+    expect(() => db.prepare("DELETE FROM datasets WHERE role = 'run-units'").run()).toThrow(/cannot be deleted/);
+    db.close();
+  });
+
+  it('an unfinished run may only be finished, or removed with its columns', () => {
+    const ws = openFresh();
+    const runId = begin(ws);
+    const raw = ws.path;
+    ws.close();
+    const db = new Database(raw);
+    expect(() => db.prepare("UPDATE runs SET results = '{}' WHERE id = ?").run(runId)).toThrow(/only be marked finished/);
+    db.close();
+    const again = openFresh(raw);
+    must(again.discardUnfinishedRun(runId));
+    expect(problemsOf(again.getRun(runId))[0]!.message).toMatch(/no run with id/);
+    expect(problemsOf(again.loadRunUnits(runId))[0]!.message).toMatch(/no per-unit columns/);
+    again.close();
   });
 });

@@ -1,5 +1,6 @@
 // Render every figure of a document to PNG once; the renderers look them up by figure id.
 
+import { Cancelled } from '../../design/propensity.ts';
 import type { Document, Figure } from '../model/document.ts';
 import { flattenSections } from '../model/format.ts';
 import { renderChartPng } from './chart-png.ts';
@@ -9,9 +10,10 @@ export function figuresOf(doc: Document): Figure[] {
   return flattenSections(doc).flatMap(({ section }) => section.blocks.filter((b): b is Figure => b.kind === 'figure'));
 }
 
-export async function renderFigures(doc: Document, size: ChartSize = DEFAULT_CHART_SIZE): Promise<Map<string, Buffer>> {
+export async function renderFigures(doc: Document, size: ChartSize = DEFAULT_CHART_SIZE, signal?: AbortSignal): Promise<Map<string, Buffer>> {
   const out = new Map<string, Buffer>();
   for (const f of figuresOf(doc)) {
+    if (signal?.aborted) throw new Cancelled();
     out.set(f.id, await renderChartPng(f.chart, { width: size.width, height: size.height, scale: size.scale }));
   }
   return out;
