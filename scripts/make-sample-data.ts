@@ -1,13 +1,13 @@
 // Writes the invented data files of the sample programs (npx tsx scripts/make-sample-data.ts).
 // The files are committed; this script documents and reproduces them. The generators in
-// main/data/synthetic/ are pure and seeded; this script only turns their sheets into files
+// main/sample-data/ are pure and seeded; this script only turns their sheets into files
 // (.xlsx through exceljs, .csv per RFC 4180 with CRLF line ends).
 import { mkdirSync, statSync, writeFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import ExcelJS from 'exceljs';
-import { SAMPLE_PROGRAMS } from '../main/data/synthetic/samples.ts';
-import type { SampleCell, SampleSheet } from '../main/data/synthetic/sample-sheet.ts';
+import { SAMPLE_PROGRAMS } from '../main/sample-data/samples.ts';
+import type { SampleCell, SampleSheet } from '../main/sample-data/sample-sheet.ts';
 
 const root = join(dirname(fileURLToPath(import.meta.url)), '..');
 /** Fixed document dates, so that a re-run writes the same workbook properties. */

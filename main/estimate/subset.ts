@@ -1,7 +1,6 @@
 // Small helpers to take the rows of an estimation sample out of whole-data columns. Pure.
 
-import type { ClusterIds } from './types.ts';
-import type { ClusterCodes } from './variance.ts';
+import type { ClusterCodes, ClusterIds } from './types.ts';
 
 /** Positions (ascending) where mask is 1. */
 export function indicesOf(mask: Uint8Array): Int32Array {

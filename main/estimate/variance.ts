@@ -17,16 +17,12 @@
 
 import { EstimateInputError } from './errors.ts';
 import { clusterMeat, inverseGram, leverages, sandwich, weightedMeat, type Decomposition } from './linalg.ts';
-import type { ClusterIds, VarianceType } from './types.ts';
+import type { ClusterCodes, ClusterIds, VarianceType } from './types.ts';
+
+export type { ClusterCodes };
 import { globalClusterCodes } from './subset.ts';
 
 export const VARIANCE_TYPES: readonly VarianceType[] = ['classical', 'HC0', 'HC1', 'HC2', 'HC3', 'CR1'];
-
-/** Dense cluster codes 0..count−1, in order of first appearance. */
-export interface ClusterCodes {
-  codes: Int32Array;
-  count: number;
-}
 
 /** Map cluster ids to dense codes; refuses missing ids with the position of the first one. */
 export function clusterCodes(ids: ClusterIds, n: number, what = 'the cluster column'): ClusterCodes {

@@ -7,7 +7,7 @@ import { join } from 'node:path';
 import { Writable } from 'node:stream';
 import { describe, expect, it } from 'vitest';
 import { progressPrinter } from '../../main/cli/progress.ts';
-import { winterCreditSample } from '../../main/data/synthetic/winter-credit.ts';
+import { winterCreditSample } from '../../main/sample-data/winter-credit.ts';
 
 const ROOT = join(__dirname, '../..');
 const SAMPLE = join(ROOT, 'sample-programs/winter-credit/study.json');

@@ -1,5 +1,5 @@
 // The sample programs end to end, as a user runs them: the command line on each study in
-// sample-programs/, checked against what its seeded generator built in (main/data/synthetic/):
+// sample-programs/, checked against what its seeded generator built in (main/sample-data/):
 // the true effect lies inside the reported 95% interval, the rows spoilt on purpose are
 // excluded and counted with their reasons and spreadsheet rows, and the joins report the
 // unmatched and duplicate keys planted in the payment list and the outcome file.
@@ -10,11 +10,11 @@ import { mkdtempSync, readFileSync, statSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
-import { apprenticeVoucherSample, APPRENTICE_VOUCHER_TRUE_EFFECT } from '../../main/data/synthetic/apprentice-voucher.ts';
-import { homeRepairSample, HOME_REPAIR_TRUE_EFFECT } from '../../main/data/synthetic/home-repair.ts';
-import type { PlantedDefect, SampleFiles } from '../../main/data/synthetic/sample-sheet.ts';
-import { tutoringLotterySample, TUTORING_LOTTERY_TRUE_EFFECT } from '../../main/data/synthetic/tutoring-lottery.ts';
-import { winterCreditSample, WINTER_CREDIT_TRUE_EFFECT } from '../../main/data/synthetic/winter-credit.ts';
+import { apprenticeVoucherSample, APPRENTICE_VOUCHER_TRUE_EFFECT } from '../../main/sample-data/apprentice-voucher.ts';
+import { homeRepairSample, HOME_REPAIR_TRUE_EFFECT } from '../../main/sample-data/home-repair.ts';
+import type { PlantedDefect, SampleFiles } from '../../main/sample-data/sample-sheet.ts';
+import { tutoringLotterySample, TUTORING_LOTTERY_TRUE_EFFECT } from '../../main/sample-data/tutoring-lottery.ts';
+import { winterCreditSample, WINTER_CREDIT_TRUE_EFFECT } from '../../main/sample-data/winter-credit.ts';
 
 const ROOT = join(__dirname, '../..');
 

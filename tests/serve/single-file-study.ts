@@ -1,10 +1,10 @@
-// A single-file variant of the winter-credit sample (invented data, main/data/synthetic/
+// A single-file variant of the winter-credit sample (invented data, main/sample-data/
 // winter-credit.ts): one CSV with every column and a study that reads it. Used by the job
 // worker tests and the responsiveness benchmark.
 
 import { openSync, closeSync, readFileSync, writeSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { winterCreditRows } from '../../main/data/synthetic/winter-credit.ts';
+import { winterCreditRows } from '../../main/sample-data/winter-credit.ts';
 
 /** The sample program's rule, read from its study file rather than restated. */
 const SAMPLE_PROGRAM: unknown = JSON.parse(readFileSync(new URL('../../sample-programs/winter-credit/study.json', import.meta.url), 'utf8')).program;

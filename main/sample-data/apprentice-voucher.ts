@@ -15,7 +15,7 @@
 //   so the effect of enrolling is exactly TRUE_EFFECT for everyone.
 // Defects planted on purpose are listed in ApprenticeVoucherSample.planted.
 
-import { createRng } from '../../design/random.ts';
+import { createRng } from '../design/random.ts';
 import { col, normal, roundTo, sheetRowOf, unitId, type PlantedDefect, type SampleFiles, type SampleSheet } from './sample-sheet.ts';
 
 export const APPRENTICE_VOUCHER_TRUE_EFFECT = 2400;

@@ -2,7 +2,7 @@
 // rows), the defects planted in it on purpose, and the random draws every generator needs. Pure:
 // the generators return values; scripts/make-sample-data.ts writes them to files.
 
-import type { Rng } from '../../design/random.ts';
+import type { Rng } from '../design/random.ts';
 
 /** One cell as the generator writes it: a number, a text, or nothing (a blank cell). */
 export type SampleCell = string | number | null;

@@ -18,7 +18,7 @@
 // households have no outcome row (moved away; missing at random), and each file carries a few
 // defects planted on purpose (see WinterCreditSample.planted).
 
-import { createRng, type Rng } from '../../design/random.ts';
+import { createRng, type Rng } from '../design/random.ts';
 import { col, normal, sheetRowOf, type PlantedDefect, type SampleCell, type SampleFiles, type SampleSheet } from './sample-sheet.ts';
 
 export const WINTER_CREDIT_TRUE_EFFECT = -40;

@@ -18,7 +18,7 @@
 //   Y = 0.8·B0 + 30 + 0.3·C + 12·u + TRUE_EFFECT·D + N(0, 12²), so the effect is exactly TRUE_EFFECT.
 // Defects planted on purpose are listed in HomeRepairSample.planted.
 
-import { createRng } from '../../design/random.ts';
+import { createRng } from '../design/random.ts';
 import { col, normal, roundTo, sheetRowOf, unitId, type PlantedDefect, type SampleFiles, type SampleSheet } from './sample-sheet.ts';
 
 export const HOME_REPAIR_TRUE_EFFECT = -18;

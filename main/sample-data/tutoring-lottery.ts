@@ -18,7 +18,7 @@
 //   spring score Y = 8 + 0.85·S + 2·(grade − 4) + 3·u + TRUE_EFFECT·D + N(0, 5²), so the effect is exactly TRUE_EFFECT.
 // Defects planted on purpose are listed in TutoringLotterySample.planted.
 
-import { createRng } from '../../design/random.ts';
+import { createRng } from '../design/random.ts';
 import { col, normal, roundTo, sheetRowOf, unitId, type PlantedDefect, type SampleFiles, type SampleSheet } from './sample-sheet.ts';
 
 export const TUTORING_LOTTERY_TRUE_EFFECT = 4;
