@@ -10,7 +10,7 @@ import { mapStudyColumns, type ColumnSpec, type MappedData } from '../data/map-c
 import { readTable } from '../data/read-table.ts';
 import type { RawTable } from '../data/types.ts';
 import { computePropensityParallel } from '../design/parallel/pool.ts';
-import type { PropensityResult, Progress } from '../design/propensity.ts';
+import { Cancelled, type PropensityResult, type Progress } from '../design/propensity.ts';
 import { apsOnGrid } from '../design/grid-band.ts';
 import { resolutionWarnings } from '../design/resolution.ts';
 import { estimateApsIv, type ApsIvResult } from '../estimate/aps-iv.ts';
@@ -176,7 +176,11 @@ export async function runStudy(study: Study, options: RunOptions): Promise<Check
   const ps = propensity.value;
   lap('propensity');
 
+  // Between stages and between outcomes: a cancel asked for during a stage stops the run here.
+  const stopIfCancelled = () => { if (options.signal?.aborted) throw new Cancelled(); };
+  stopIfCancelled();
   options.onProgress?.({ stage: 'estimate', done: 0, total: 1 });
+  stopIfCancelled();
   const warnings: Warning[] = [];
   const clusters = data.cluster ? data.cluster.codes : undefined;
   const offer: NamedColumn = { name: study.columns.decision && prepared.instrument.source === 'recorded-decision' ? study.columns.decision : 'offer (formula)', values: z };
@@ -199,7 +203,9 @@ export async function runStudy(study: Study, options: RunOptions): Promise<Check
   warnings.push(...estimates.warnings);
   lap('estimate');
 
+  stopIfCancelled();
   options.onProgress?.({ stage: 'checks', done: 0, total: 1 });
+  stopIfCancelled();
   const balance = covariates.length ? balanceChecks({ covariates, offer, propensity: propCols, ...(clusters ? { clusters } : {}) }) : { rows: [], joint: [], warnings: [] };
   warnings.push(...balance.warnings);
   const zBinary = Array.prototype.every.call(z, (v: number) => v === 0 || v === 1);
@@ -216,6 +222,7 @@ export async function runStudy(study: Study, options: RunOptions): Promise<Check
 
   const cutoff = singleCutoff(program);
   const outcomes = estimates.outcomes.map((o, i) => {
+    stopIfCancelled();
     const sensitivity = deltaSensitivity(o.column, o.byDelta);
     warnings.push(...sensitivity.warnings);
     let local = null;
@@ -295,6 +302,7 @@ export async function runStudy(study: Study, options: RunOptions): Promise<Check
     warnings: dedupe(warnings),
   };
   options.onProgress?.({ stage: 'checks', done: 1, total: 1 });
+  stopIfCancelled();
   return {
     ok: true,
     value: {
