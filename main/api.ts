@@ -9,7 +9,7 @@ import { checkShape, type Shape } from './api/args.ts';
 import { refuse, type CallContext } from './api/context.ts';
 import { checkStudy, evaluateStudy, runDemo } from './api/evaluate.ts';
 import { checkDraftStudy, previewData } from './api/data.ts';
-import { boundaryMap } from './api/figures.ts';
+import { boundaryMap, edgeFiguresOfRun } from './api/figures.ts';
 import { listFolder, openDialog, previewMemo, saveDialog } from './api/files.ts';
 import type { HostContext } from './api/host.ts';
 import { WORKER_METHODS } from './api/worker-runner.ts';
@@ -66,6 +66,7 @@ const METHODS: { [M in ApiMethod]: { args: Shape; run: Handler<M> } } = {
     },
     run: boundaryMap,
   },
+  'figure.edge': { args: { object: { runId: 'integer' } }, run: edgeFiguresOfRun },
   'study.fingerprint': { args: { object: { study: 'unknown', baseDir: path }, optional: ['baseDir'] }, run: fingerprintStudy },
   'run.exportMemo': { args: { object: { runId: 'integer', outDir: path, formats } }, run: exportRunMemo },
 };

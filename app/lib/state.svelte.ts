@@ -231,21 +231,19 @@ export class AppState {
     this.controller?.abort();
   }
 
-  /** Write the memo again in another folder, in the formats chosen. */
+  /** Write the memo of the run shown again, in another folder, in the formats chosen (from the stored run: nothing is run again). */
   async writeMemo(formats: Array<'pdf' | 'html' | 'docx' | 'xlsx'>, outDir: string): Promise<void> {
-    const info = this.info;
-    const d = this.draft;
-    if (!info || !d) return;
     this.memoProblems = [];
+    const runId = this.report?.runId;
+    if (!runId) { this.memoProblems = [{ path: '', message: 'Run the study, or open one of its recorded runs, first; the memo is written from a run.' }]; return; }
     this.busy = 'Writing the memo…';
-    const studyPath = this.runStudyPath;
-    if (!studyPath) { this.busy = null; this.memoProblems = [{ path: '', message: 'Run the study in this window first; the memo is written from a run.' }]; return; }
-    const r = await this.api.call('study.evaluate', { studyPath, outDir, formats }, { onProgress: (p) => { this.progress = p; } });
+    const r = await this.api.call('run.exportMemo', { runId, outDir, formats }, { onProgress: (p) => { this.progress = p; } });
     this.busy = null;
     this.progress = null;
     if (!r.ok) { this.memoProblems = r.error.problems; return; }
     this.memoFiles = r.value.files.filter((f) => MEMO_EXT.test(f));
-    this.notice = `Wrote ${this.memoFiles.length} memo file(s) to ${r.value.outDir}.`;
+    const n = r.value.files.length;
+    this.notice = `Wrote ${n.toLocaleString('en-US')} memo file${n === 1 ? '' : 's'} to ${r.value.outDir}.`;
   }
 
   async openRecordedRun(runId: number): Promise<Problem[]> {
@@ -255,7 +253,8 @@ export class AppState {
     this.draft = normalizeDraft(r.value.study);
     this.baseDir = null; this.studyPath = null; this.fromSample = false; this.openProblems = [];
     this.results = r.value.results;
-    this.report = { outDir: '', files: [], results: r.value.results, runId: r.value.runId, timings: {} };
+    this.report = { outDir: r.value.outDir, files: r.value.files, results: r.value.results, runId: r.value.runId, timings: {} };
+    this.memoFiles = r.value.files.filter((f) => MEMO_EXT.test(f));
     this.runState = 'done';
     this.step = 'evidence';
     return [];

@@ -4,10 +4,12 @@
 // with the run in the workspace, so nothing is run again to draw: a slider move reads the stored
 // columns and recomputes only the map's grid.
 
-import type { ApiResult, MapArgs, MapFigure } from '../contract/api.ts';
+import type { ApiResult, EdgeFigures, EdgeFiguresArgs, MapArgs, MapFigure } from '../contract/api.ts';
 import type { Study } from '../contract/study.ts';
 import type { BoundaryMapSpec } from '../report/charts/spec.ts';
 import { boundaryMapChoices, boundaryMapData, deltaIndex, discreteCodes, type MapRun } from '../report/boundary-map.ts';
+import { densityData, signedDistanceData } from '../report/figure-data.ts';
+import { edgeFigures } from '../report/model/edge-figures.ts';
 import type { BoundaryMapData } from '../report/model/figure-types.ts';
 import type { RunView } from '../report/run-view.ts';
 import { openStoredRun } from '../pipeline/record.ts';
@@ -149,4 +151,13 @@ export async function boundaryMap(args: MapArgs, ctx: HostContext = {}): Promise
       discrete: choices.discrete,
     },
   };
+}
+
+/** The edge figures of a stored run (distance and density; binned, small cells hidden), as the memo draws them. */
+export async function edgeFiguresOfRun(args: EdgeFiguresArgs, ctx: HostContext = {}): Promise<ApiResult<EdgeFigures>> {
+  const stored = storedRunView(args.runId, ctx);
+  if (!stored.ok) return refuse(stored.problems);
+  const run = stored.value.view;
+  const figures = edgeFigures(run.results, { signedDistance: signedDistanceData(run), density: densityData(run) });
+  return { ok: true, value: { figures: figures.map((f) => ({ id: f.id, spec: f.chart, caption: f.caption, alt: f.alt })) } };
 }

@@ -13,7 +13,7 @@ import type { FromJobWorker, ToJobWorker, WorkerHost } from './job-messages.ts';
 import type { CallContext } from './context.ts';
 
 /** Methods that read a whole data file, open the workspace or estimate: never on the host's main thread. */
-export const WORKER_METHODS: ReadonlySet<ApiMethod> = new Set<ApiMethod>(['study.check', 'study.evaluate', 'demo.run', 'data.preview', 'data.check', 'figure.map', 'workspace.run', 'run.exportMemo']);
+export const WORKER_METHODS: ReadonlySet<ApiMethod> = new Set<ApiMethod>(['study.check', 'study.evaluate', 'demo.run', 'data.preview', 'data.check', 'figure.map', 'figure.edge', 'workspace.run', 'run.exportMemo']);
 
 export type WorkerRunner = (method: ApiMethod, args: unknown, ctx: CallContext & WorkerHost) => Promise<ApiResult<unknown>>;
 

@@ -2,7 +2,7 @@
 // mode over HTTP, Electron over IPC. Types only.
 
 import type { Results } from './results.ts';
-import type { BoundaryMapSpec } from '../report/charts/spec.ts';
+import type { BoundaryMapSpec, ChartSpec } from '../report/charts/spec.ts';
 import type { StudySettings } from './study.ts';
 import type { Problem } from '../rules/types.ts';
 
@@ -62,7 +62,7 @@ export const API_METHODS: readonly ApiMethod[] = [
   'study.check', 'study.evaluate', 'demo.run',
   'program.check', 'program.tryUnit', 'study.open', 'study.save', 'samples.list', 'data.preview', 'data.check',
   'workspace.info', 'workspace.recent', 'workspace.run', 'files.list', 'dialog.openFile', 'dialog.saveFile', 'memo.preview',
-  'figure.map', 'study.fingerprint', 'run.exportMemo',
+  'figure.map', 'figure.edge', 'study.fingerprint', 'run.exportMemo',
 ];
 
 // ---- The desktop app's methods (issue 6) ------------------------------------------------------
@@ -218,6 +218,10 @@ export interface StudyFingerprintArgs { study: unknown; baseDir?: string }
 /** The content hash of a study being edited (null while it is not a valid study). */
 export interface StudyFingerprint { sha256: string | null }
 
+export interface EdgeFiguresArgs { runId: number }
+/** Take-up and outcomes against the distance to the rule's edge, and the density around each limit, of a stored run (binned; small cells hidden). */
+export interface EdgeFigures { figures: Array<{ id: string; spec: ChartSpec; caption: string; alt: string }> }
+
 export interface RunExportMemoArgs { runId: number; outDir: string; formats: OutputFormat[] }
 export interface RunExportedMemo { outDir: string; files: string[] }
 
@@ -281,6 +285,7 @@ export interface AppApiMethods {
   'dialog.saveFile': { args: DialogArgs; result: DialogAnswer };
   'memo.preview': { args: MemoPreviewArgs; result: MemoPreview };
   'figure.map': { args: MapArgs; result: MapFigure };
+  'figure.edge': { args: EdgeFiguresArgs; result: EdgeFigures };
   'study.fingerprint': { args: StudyFingerprintArgs; result: StudyFingerprint };
   'run.exportMemo': { args: RunExportMemoArgs; result: RunExportedMemo };
 }
