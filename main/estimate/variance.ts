@@ -18,15 +18,11 @@
 import { EstimateInputError } from './errors.ts';
 import { clusterMeat, inverseGram, leverages, sandwich, weightedMeat, type Decomposition } from './linalg.ts';
 import type { ClusterIds, VarianceType } from './types.ts';
-import { globalClusterCodes } from './subset.ts';
+import { globalClusterCodes, type ClusterCodes } from './cluster-codes.ts';
 
 export const VARIANCE_TYPES: readonly VarianceType[] = ['classical', 'HC0', 'HC1', 'HC2', 'HC3', 'CR1'];
 
-/** Dense cluster codes 0..count−1, in order of first appearance. */
-export interface ClusterCodes {
-  codes: Int32Array;
-  count: number;
-}
+export type { ClusterCodes };
 
 /** Map cluster ids to dense codes; refuses missing ids with the position of the first one. */
 export function clusterCodes(ids: ClusterIds, n: number, what = 'the cluster column'): ClusterCodes {
