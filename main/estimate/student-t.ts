@@ -24,11 +24,21 @@ export function twoSidedTP(t: number, df: number): number {
 }
 
 /** The t quantile c with P(|T_ν| ≤ c) = level (e.g. t(11), level 0.95 → 2.201). */
+const criticalMemo = new Map<string, number>();
+
 export function tCritical(level: number, df: number): number {
   const z = normalCritical(level); // also validates level
   if (df === Infinity) return z;
   if (!(df > 0)) return NaN;
-  const alpha = 1 - level;
+  const key = `${level}:${df}`;
+  const hit = criticalMemo.get(key);
+  if (hit !== undefined) return hit;
+  const c = invertTwoSided(1 - level, df, z);
+  criticalMemo.set(key, c);
+  return c;
+}
+
+function invertTwoSided(alpha: number, df: number, z: number): number {
   // twoSidedTP(c) decreases in c; the t quantile exceeds the normal one, so start there.
   let lo = 0;
   let hi = Math.max(z, 1);
