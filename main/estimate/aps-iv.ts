@@ -37,6 +37,7 @@ import { formatNumber, gather, globalClusterCodes, indicesOf, subsetClusters } f
 import type { ClusterIds, EstimateWarning, NamedColumn } from './types.ts';
 import type { ClusterCodes } from './variance.ts';
 import { solveQuadraticSet, tfInterval, WEAK_F_THRESHOLD, type ArShape } from './weak-iv.ts';
+import { WILD_BOOTSTRAP_MAX_CLUSTERS, wildClusterBootstrap, type WildBootstrapResult } from './wild-bootstrap.ts';
 
 /** Fewer boundary units than this earns a warning (issue 3, §6; common practice, no source). */
 export const FEW_BOUNDARY_UNITS = 50;
@@ -75,6 +76,9 @@ export interface ApsIvInput {
   /** Factorizations to share with other calls on the same data (balance checks, the other
    * variance convention); see offer-design.ts. */
   cache?: DesignCache;
+  /** With clusters: run the wild cluster bootstrap (wild-bootstrap.ts) at this delta (the
+   * headline, headline.ts) when the estimation sample has fewer than 50 clusters. */
+  wildBootstrap?: { deltaIndex: number; seed: number; reps?: number };
 }
 
 /** One outcome at one delta: maps one-to-one onto results.json `outcomes[].byDelta[]`. */
@@ -106,6 +110,9 @@ export interface DeltaEstimate {
   clusters: number | null;
   /** Degrees of freedom of the t reference of `ci`, `p` and `arCi` (G − 1 with CR1); null = normal. */
   referenceDf: number | null;
+  /** Wild cluster bootstrap p-value of β = 0 and interval (CR1 with fewer than 50 clusters, at
+   * the headline delta only); null otherwise. */
+  wildBootstrap: WildBootstrapResult | null;
   /** Controls kept in the model, the APS included when it was not dropped. */
   controls: string[];
   /** Columns dropped as collinear (e.g. a constant APS in a pure lottery). */
@@ -249,6 +256,7 @@ export function estimateApsIv(input: ApsIvInput): ApsIvResult {
         globalClusters,
         level,
         cache,
+        bootstrap: input.wildBootstrap && input.wildBootstrap.deltaIndex === k ? input.wildBootstrap : undefined,
       });
       outcomes[j]!.byDelta.push(entry);
     });
@@ -274,6 +282,7 @@ interface DeltaJob {
   globalClusters: { codes: Int32Array; count: number } | undefined;
   level: number;
   cache: DesignCache;
+  bootstrap: { seed: number; reps?: number } | undefined;
 }
 
 function emptyEstimate(job: DeltaJob, offered: number, warnings: EstimateWarning[], variance: OfferVariance): DeltaEstimate {
@@ -296,6 +305,7 @@ function emptyEstimate(job: DeltaJob, offered: number, warnings: EstimateWarning
     variance,
     clusters: null,
     referenceDf: null,
+    wildBootstrap: null,
     controls: [],
     dropped: [],
     warnings,
@@ -405,6 +415,7 @@ function estimateAtDelta(job: DeltaJob): DeltaEstimate {
     const ci: [number, number] = [fitY.coef - critical * reducedForm.se, fitY.coef + critical * reducedForm.se];
     return {
       ...base,
+      wildBootstrap: bootstrapFor(job, design, gather(job.offer.values, idx)),
       estimable: true,
       estimate: fitY.coef,
       se: reducedForm.se,
@@ -462,6 +473,7 @@ function estimateAtDelta(job: DeltaJob): DeltaEstimate {
   }
   return {
     ...base,
+    wildBootstrap: bootstrapFor(job, design, dSample),
     estimable: true,
     estimate: beta,
     se,
@@ -474,6 +486,19 @@ function estimateAtDelta(job: DeltaJob): DeltaEstimate {
     tfCi: tf.interval,
     weakInstrument: weak,
   };
+}
+
+/** The wild cluster bootstrap when asked for at this delta and the clusters are fewer than 50. */
+function bootstrapFor(job: DeltaJob, design: ReturnType<typeof withVariance>, d: Float64Array): WildBootstrapResult | null {
+  if (!job.bootstrap || !design.clusters || design.clusters.count >= WILD_BOOTSTRAP_MAX_CLUSTERS) return null;
+  return wildClusterBootstrap({
+    design,
+    y: gather(job.y, job.idx),
+    d,
+    seed: job.bootstrap.seed,
+    level: job.level,
+    ...(job.bootstrap.reps !== undefined ? { reps: job.bootstrap.reps } : {}),
+  });
 }
 
 /**

@@ -141,26 +141,28 @@ export function prepareWildBootstrap(input: WildBootstrapInput): WildBootstrappe
   const eD = fitD.residuals;
   let cc = 0;
   for (let i = 0; i < n; i++) cc += c[i]! * c[i]!;
-  // Per-cluster sums of the basis (e_Y, e_D, z̃): A[b][g], Q[b][g·k + l]; and P[g·k + l].
-  const basis = [eY, eD, null] as const; // null: z̃ = c/‖c‖²
-  const A = basis.map(() => new Float64Array(G));
-  const Qs = basis.map(() => new Float64Array(G * k));
+  // Per-cluster sums of the basis (e_Y, e_D, z̃ = c/‖c‖²): A[b][g], Q[b][g·k + l]; and P[g·k + l].
+  const A = [new Float64Array(G), new Float64Array(G), new Float64Array(G)] as const;
+  const Qs = [new Float64Array(G * k), new Float64Array(G * k), new Float64Array(G * k)] as const;
   const P = new Float64Array(G * k);
+  const [A0, A1, A2] = A;
+  const [Q0, Q1, Q2] = Qs;
   for (let i = 0; i < n; i++) {
     const g = codes[i]!;
     const ci = c[i]!;
     const r0 = eY[i]!;
     const r1 = eD[i]!;
     const r2 = ci / cc;
-    A[0]![g] += ci * r0;
-    A[1]![g] += ci * r1;
-    A[2]![g] += ci * r2;
+    A0[g] = A0[g]! + ci * r0;
+    A1[g] = A1[g]! + ci * r1;
+    A2[g] = A2[g]! + ci * r2;
     for (let l = 0; l < k; l++) {
       const ql = q[l * n + i]!;
-      Qs[0]![g * k + l] += ql * r0;
-      Qs[1]![g * k + l] += ql * r1;
-      Qs[2]![g * k + l] += ql * r2;
-      P[g * k + l] += ci * ql;
+      const j = g * k + l;
+      Q0[j] = Q0[j]! + ql * r0;
+      Q1[j] = Q1[j]! + ql * r1;
+      Q2[j] = Q2[j]! + ql * r2;
+      P[j] = P[j]! + ci * ql;
     }
   }
   let yy = 0;
@@ -175,7 +177,7 @@ export function prepareWildBootstrap(input: WildBootstrapInput): WildBootstrappe
   // CR1 se of β̂ from the structural residual e_Y − β̂·e_D (offer-design.ts).
   let ssHat = 0;
   for (let g = 0; g < G; g++) {
-    const s = A[0]![g]! - beta * A[1]![g]!;
+    const s = A0[g]! - beta * A1[g]!;
     ssHat += s * s;
   }
   const se = Math.sqrt((f * ssHat) / (pi * pi));
@@ -199,15 +201,14 @@ export function prepareWildBootstrap(input: WildBootstrapInput): WildBootstrappe
     const alpha = ee > 0 ? ed / ee : 0;
     const piTilde = pi - alpha * kappa;
     // ũ = e_Y − β0 e_D + κ z̃ ; ṽ = e_D + α̃κ z̃ (coefficients on the basis)
-    const uc = [1, -beta0, kappa];
-    const vc = [0, 1, alpha * kappa];
+    const ak = alpha * kappa;
     for (let g = 0; g < G; g++) {
-      Au[g] = uc[0]! * A[0]![g]! + uc[1]! * A[1]![g]! + uc[2]! * A[2]![g]!;
-      Av[g] = vc[1]! * A[1]![g]! + vc[2]! * A[2]![g]!;
+      Au[g] = A0[g]! - beta0 * A1[g]! + kappa * A2[g]!;
+      Av[g] = A1[g]! + ak * A2[g]!;
       for (let l = 0; l < k; l++) {
         const j = g * k + l;
-        Qu[j] = uc[0]! * Qs[0]![j]! + uc[1]! * Qs[1]![j]! + uc[2]! * Qs[2]![j]!;
-        Qv[j] = vc[1]! * Qs[1]![j]! + vc[2]! * Qs[2]![j]!;
+        Qu[j] = Q0[j]! - beta0 * Q1[j]! + kappa * Q2[j]!;
+        Qv[j] = Q1[j]! + ak * Q2[j]!;
       }
     }
     const tHat = Math.abs((beta - beta0) / se);
@@ -225,8 +226,8 @@ export function prepareWildBootstrap(input: WildBootstrapInput): WildBootstrappe
         cv += wh * Av[h]!;
         const o = h * k;
         for (let l = 0; l < k; l++) {
-          mu[l] += wh * Qu[o + l]!;
-          mv[l] += wh * Qv[o + l]!;
+          mu[l] = mu[l]! + wh * Qu[o + l]!;
+          mv[l] = mv[l]! + wh * Qv[o + l]!;
         }
       }
       const piStar = piTilde + cv;
