@@ -12,9 +12,12 @@
 //   3. bootstrap samples, one weight w_g per cluster for both equations:
 //        D* = Z·π̃ + W·δ̃ + w_g·ṽ,   y* = β0·D* + W·γ̃ + w_g·ũ;
 //   4. t* = (β̂* − β0)/se_CR1(β̂*) on each sample; p = share of |t*| ≥ |t̂|, t̂ = (β̂ − β0)/se_CR1(β̂).
-// The 95% interval is {β0 : p(β0) > 0.05} by test inversion with the same weights for every β0,
-// searched outward from β̂ (where p = 1) and bisected; an end that is not reached within 2^30
-// standard errors is unbounded (null), as weak instruments produce.
+// The 95% interval is {β0 : p(β0) > 0.05} by test inversion with the same weights for every β0:
+// each end is bracketed starting from the CR1 Wald end with t(G − 1), searched outward by
+// doubling when still accepted, and bisected to 1e-4 standard errors; an end not reached within
+// 2^30 standard errors is unbounded (null), as weak instruments produce. (If p(β0) crosses the
+// level more than once, this reports the crossing bracketed first: the set may then not be one
+// interval, as with the Anderson–Rubin set.)
 //
 // Speed (why each replication costs O(G·K), not O(n)). Let c be the offer's row of (X'X)⁻¹X'
 // (offer-design.ts), z̃ = c/‖c‖² the offer with W partialled out, e_Y and e_D the residuals of y
@@ -40,6 +43,7 @@
 import { createRng } from '../design/random.ts';
 import type { OfferDesign } from './offer-design.ts';
 import { offerFit } from './offer-design.ts';
+import { tCritical } from './student-t.ts';
 
 /** Replications when draws are sampled (common practice: B + 1 a multiple of 1/α's 20 and 100). */
 export const WILD_BOOTSTRAP_REPS = 9999;
@@ -253,22 +257,26 @@ export function prepareWildBootstrap(input: WildBootstrapInput): WildBootstrappe
   return { pValue, estimate: beta, se, weights: kind, reps: B, enumerated: drawn.enumerated, clusters: G };
 }
 
-/** Bisection steps on each end of the interval (the p-value is a step function of β0; this
- * resolves an end to about 1e-6 standard errors). */
-const BISECTIONS = 40;
+/** Bisection stops when an end is pinned to this many standard errors (the p-value is a step
+ * function of β0, and the interval is reported to about four significant digits). */
+const END_TOLERANCE = 1e-4;
 /** Doublings of the outward search before an end is declared unbounded (2^30 standard errors). */
 const MAX_DOUBLINGS = 30;
 
 /** p-value of β = 0 and the test-inversion interval (Davidson & MacKinnon 2010, WRE). */
 export function wildClusterBootstrap(input: WildBootstrapInput): WildBootstrapResult {
   const boot = prepareWildBootstrap(input);
-  const alpha = 1 - (input.level ?? 0.95);
+  const level = input.level ?? 0.95;
+  const alpha = 1 - level;
   const accept = (b0: number) => boot.pValue(b0) > alpha;
   const scale = boot.se > 0 && Number.isFinite(boot.se) ? boot.se : Math.max(1, Math.abs(boot.estimate));
+  // First guess: the CR1 Wald end with t(G − 1) (student-t.ts); then outward doubling or inward
+  // bisection. p(β̂) = 1, so β̂ is always inside.
+  const first = tCritical(level, boot.clusters - 1) * scale;
   const end = (sign: 1 | -1): number | null => {
     let inside = boot.estimate;
-    let step = scale;
-    let outside = boot.estimate + sign * step;
+    let outside = boot.estimate + sign * first;
+    let step = first;
     let doublings = 0;
     while (accept(outside)) {
       inside = outside;
@@ -276,7 +284,7 @@ export function wildClusterBootstrap(input: WildBootstrapInput): WildBootstrapRe
       outside = boot.estimate + sign * step;
       if (++doublings > MAX_DOUBLINGS) return null;
     }
-    for (let i = 0; i < BISECTIONS && Math.abs(outside - inside) > 1e-7 * scale; i++) {
+    while (Math.abs(outside - inside) > END_TOLERANCE * scale) {
       const mid = 0.5 * (inside + outside);
       if (accept(mid)) inside = mid;
       else outside = mid;

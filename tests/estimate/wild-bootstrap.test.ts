@@ -3,6 +3,7 @@
 // sample explicitly from restricted fits done with ols.ts and refits the 2SLS with tsls.ts (CR1):
 // the p-values must be equal (they are counts over the same draws). Invented data.
 import { describe, expect, it } from 'vitest';
+import { estimateApsIv } from '../../main/estimate/aps-iv.ts';
 import { factorOfferDesign, withVariance } from '../../main/estimate/offer-design.ts';
 import { ols } from '../../main/estimate/ols.ts';
 import { tsls } from '../../main/estimate/tsls.ts';
@@ -78,6 +79,40 @@ describe('wild cluster bootstrap (WRE)', () => {
       }
     });
   }
+
+  it('the offer’s own effect (take-up = the offer): p-values equal the brute-force loop', () => {
+    const x = data(77, 9, 20, 0.3);
+    const y = x.y;
+    const asOffer = { ...x, d: x.z, y };
+    const boot = prepareWildBootstrap({ design: designOf(asOffer), y, d: x.z, seed: 11, reps: 199 });
+    const w = bootstrapWeights(9, 199, 'webb', 11);
+    for (const beta0 of [0, boot.estimate - 2 * boot.se]) {
+      expect(Math.abs(boot.pValue(beta0) - bruteForceP(asOffer, beta0, w.w, w.reps, 9))).toBeLessThan(1e-10);
+    }
+  });
+
+  it('wired into the headline estimator: at the asked delta with fewer than 50 clusters only', () => {
+    const x = data(8, 20, 30, 0.2);
+    const base = {
+      outcomes: [{ column: 'Y', values: x.y }],
+      offer: { name: 'Z', values: x.z },
+      treatment: { name: 'D', values: x.d },
+      propensity: { deltas: [0.1, 0.2], aps: [x.aps, x.aps] },
+      controls: [{ name: 'C', values: x.ctrl }],
+      clusters: x.cl,
+    };
+    const est = estimateApsIv({ ...base, wildBootstrap: { deltaIndex: 1, seed: 5, reps: 499 } }).outcomes[0]!;
+    expect(est.byDelta[0]!.wildBootstrap).toBeNull();
+    const wb = est.byDelta[1]!.wildBootstrap!;
+    expect(wb).toEqual(wildClusterBootstrap({ design: designOf(x), y: x.y, d: x.d, seed: 5, reps: 499 }));
+    expect(wb.weights).toBe('rademacher');
+    expect(est.byDelta[1]!.clusters).toBe(20);
+    expect(estimateApsIv(base).outcomes[0]!.byDelta[1]!.wildBootstrap).toBeNull();
+    const many = data(9, 60, 10, 0.2);
+    const est60 = estimateApsIv({ ...base, outcomes: [{ column: 'Y', values: many.y }], offer: { name: 'Z', values: many.z }, treatment: { name: 'D', values: many.d }, propensity: { deltas: [0.1], aps: [many.aps] }, controls: [], clusters: many.cl, wildBootstrap: { deltaIndex: 0, seed: 5 } });
+    expect(est60.outcomes[0]!.byDelta[0]!.clusters).toBe(60);
+    expect(est60.outcomes[0]!.byDelta[0]!.wildBootstrap).toBeNull();
+  });
 
   it('estimate and se equal tsls.ts with CR1; p(β̂) = 1; same seed, same result', () => {
     const x = data(5, 10, 30, 0);
