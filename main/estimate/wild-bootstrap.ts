@@ -45,7 +45,9 @@ import type { OfferDesign } from './offer-design.ts';
 import { offerFit } from './offer-design.ts';
 import { tCritical } from './student-t.ts';
 
-/** Replications when draws are sampled (common practice: B + 1 a multiple of 1/α's 20 and 100). */
+/** Replications when draws are sampled: 9,999 so that α(B + 1) is a whole number for α = 0.05 and
+ * 0.01, the choice Davidson & MacKinnon (2004, "Econometric Theory and Methods", §4.6) advise
+ * (from memory); common practice. p = exceed/B, so a p-value of 0 means below 1/B. */
 export const WILD_BOOTSTRAP_REPS = 9999;
 /** The bootstrap is run when the clusters number fewer than this (common practice). */
 export const WILD_BOOTSTRAP_MAX_CLUSTERS = 50;
