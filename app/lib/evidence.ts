@@ -85,8 +85,8 @@ export function compositionVerdict(r: Results): Verdict {
 
 export function complierVerdict(r: Results): Verdict {
   const p = r.compliers[headlineIndex(r)] ?? r.compliers[0];
-  if (!p || p.complierShare === null) return neutral('No complier profile: it needs covariates, a 0/1 offer and a 0/1 take-up.');
-  return neutral(`About ${percent(p.complierShare, 0)} of units near the edge take the benefit up because they are offered it (compliers); the table compares them with everyone.`);
+  if (!p || !p.complierShare) return neutral('No complier profile: it needs covariates, a 0/1 offer and a 0/1 take-up.');
+  return neutral(`About ${percent(p.complierShare.coef, 0)} of units near the edge take the benefit up because they are offered it (compliers); the table compares them with everyone.`);
 }
 
 /** The estimate-by-delta chart for one outcome (chart.js through main/report/charts). */

@@ -4,7 +4,10 @@
 //   first stage   D = γ0 + γ1·Z + γ2·APS (+ controls) + ν
 //   reduced form  Y = ρ0 + ρ1·Z + ρ2·APS (+ controls) + e
 //   2SLS          Y = β0 + β1·D + β2·APS (+ controls) + ε, D instrumented by Z,
-// with HC1 standard errors, or CR1 when clusters are given (CLI.md). With one instrument and the
+// with HC1 standard errors, or CR1 when clusters are given (CLI.md); with CR1 and G clusters the
+// Wald interval, p-value and Anderson–Rubin set refer to t(G − 1) instead of the normal (the
+// common small-G correction: Cameron, Gelbach & Miller 2008, REStat 90:414–427; Cameron & Miller
+// 2015, §VI.C — student-t.ts). With one instrument and the
 // same controls in both stages the 2SLS estimate is ρ1/γ1 (indirect least squares), so all three
 // come from one factorization of [1, APS, controls, Z] (offer-design.ts); the tests check every
 // number against tsls.ts and weak-iv.ts. Weak-instrument inference: the robust first-stage F (the
@@ -18,7 +21,7 @@
 // Without a treatment column the estimate is the effect of the offer itself: the reduced form.
 
 import { EstimateInputError } from './errors.ts';
-import { normalCritical, twoSidedNormalP } from './inference.ts';
+import { normalCritical } from './inference.ts';
 import {
   cachedFactor,
   createDesignCache,
@@ -29,10 +32,12 @@ import {
   type DesignCache,
   type OfferVariance,
 } from './offer-design.ts';
+import { referenceFor } from './student-t.ts';
 import { formatNumber, gather, globalClusterCodes, indicesOf, subsetClusters } from './subset.ts';
 import type { ClusterIds, EstimateWarning, NamedColumn } from './types.ts';
 import type { ClusterCodes } from './variance.ts';
 import { solveQuadraticSet, tfInterval, WEAK_F_THRESHOLD, type ArShape } from './weak-iv.ts';
+import { WILD_BOOTSTRAP_MAX_CLUSTERS, wildClusterBootstrap, type WildBootstrapResult } from './wild-bootstrap.ts';
 
 /** Fewer boundary units than this earns a warning (issue 3, §6; common practice, no source). */
 export const FEW_BOUNDARY_UNITS = 50;
@@ -71,6 +76,9 @@ export interface ApsIvInput {
   /** Factorizations to share with other calls on the same data (balance checks, the other
    * variance convention); see offer-design.ts. */
   cache?: DesignCache;
+  /** With clusters: run the wild cluster bootstrap (wild-bootstrap.ts) at this delta (the
+   * headline, headline.ts) when the estimation sample has fewer than 50 clusters. */
+  wildBootstrap?: { deltaIndex: number; seed: number; reps?: number };
 }
 
 /** One outcome at one delta: maps one-to-one onto results.json `outcomes[].byDelta[]`. */
@@ -98,7 +106,13 @@ export interface DeltaEstimate {
   /** First-stage F below 10 (Staiger & Stock 1997). */
   weakInstrument: boolean | null;
   variance: OfferVariance;
+  /** Clusters G in the estimation sample when the SE is cluster-robust (CR1), else null. */
   clusters: number | null;
+  /** Degrees of freedom of the t reference of `ci`, `p` and `arCi` (G − 1 with CR1); null = normal. */
+  referenceDf: number | null;
+  /** Wild cluster bootstrap p-value of β = 0 and interval (CR1 with fewer than 50 clusters, at
+   * the headline delta only); null otherwise. */
+  wildBootstrap: WildBootstrapResult | null;
   /** Controls kept in the model, the APS included when it was not dropped. */
   controls: string[];
   /** Columns dropped as collinear (e.g. a constant APS in a pure lottery). */
@@ -140,7 +154,7 @@ export const APS_NAME = 'APS';
 export function estimateApsIv(input: ApsIvInput): ApsIvResult {
   const n = input.offer.values.length;
   const level = input.level ?? 0.95;
-  const critical = normalCritical(level);
+  normalCritical(level); // validates the level before any work
   const per = input.treatmentPer ?? 1;
   if (!(per > 0) || !Number.isFinite(per)) {
     throw new EstimateInputError('bad-option', `treatmentPer must be a positive number (for example 1000 to report the effect per 1,000 of the treatment); got ${String(input.treatmentPer)}.`);
@@ -240,8 +254,9 @@ export function estimateApsIv(input: ApsIvInput): ApsIvResult {
         aps,
         controls,
         globalClusters,
-        critical,
+        level,
         cache,
+        bootstrap: input.wildBootstrap && input.wildBootstrap.deltaIndex === k ? input.wildBootstrap : undefined,
       });
       outcomes[j]!.byDelta.push(entry);
     });
@@ -265,8 +280,9 @@ interface DeltaJob {
   aps: Float64Array;
   controls: readonly NamedColumn[];
   globalClusters: { codes: Int32Array; count: number } | undefined;
-  critical: number;
+  level: number;
   cache: DesignCache;
+  bootstrap: { seed: number; reps?: number } | undefined;
 }
 
 function emptyEstimate(job: DeltaJob, offered: number, warnings: EstimateWarning[], variance: OfferVariance): DeltaEstimate {
@@ -288,6 +304,8 @@ function emptyEstimate(job: DeltaJob, offered: number, warnings: EstimateWarning
     weakInstrument: null,
     variance,
     clusters: null,
+    referenceDf: null,
+    wildBootstrap: null,
     controls: [],
     dropped: [],
     warnings,
@@ -295,7 +313,7 @@ function emptyEstimate(job: DeltaJob, offered: number, warnings: EstimateWarning
 }
 
 function estimateAtDelta(job: DeltaJob): DeltaEstimate {
-  const { delta, label, idx, critical } = job;
+  const { delta, label, idx } = job;
   const at = `At delta ${delta}`;
   const warnings: EstimateWarning[] = [];
   const nb = idx.length;
@@ -369,9 +387,13 @@ function estimateAtDelta(job: DeltaJob): DeltaEstimate {
     clusters,
   );
   for (const w of design.warnings) warnings.push({ code: w.code, message: `${at}, outcome "${label}": ${w.message}` });
+  // Reference distribution of every Wald statistic below: t(G − 1) with CR1, else the normal.
+  const ref = referenceFor(job.level, clusters?.count);
+  const critical = ref.critical;
   const base = {
     ...emptyEstimate(job, offered, warnings, variance),
     clusters: clusters?.count ?? null,
+    referenceDf: Number.isFinite(ref.df) ? ref.df : null,
     controls: design.keptControls,
     dropped: design.dropped,
   };
@@ -393,11 +415,12 @@ function estimateAtDelta(job: DeltaJob): DeltaEstimate {
     const ci: [number, number] = [fitY.coef - critical * reducedForm.se, fitY.coef + critical * reducedForm.se];
     return {
       ...base,
+      wildBootstrap: bootstrapFor(job, design, gather(job.offer.values, idx)),
       estimable: true,
       estimate: fitY.coef,
       se: reducedForm.se,
       ci,
-      p: twoSidedNormalP(fitY.coef / reducedForm.se),
+      p: ref.p(fitY.coef / reducedForm.se),
       reducedForm,
       arCi: [ci],
       arShape: 'interval',
@@ -450,11 +473,12 @@ function estimateAtDelta(job: DeltaJob): DeltaEstimate {
   }
   return {
     ...base,
+    wildBootstrap: bootstrapFor(job, design, dSample),
     estimable: true,
     estimate: beta,
     se,
     ci: [beta - critical * se, beta + critical * se],
-    p: twoSidedNormalP(beta / se),
+    p: ref.p(beta / se),
     firstStage,
     reducedForm,
     arCi: ar.intervals,
@@ -462,6 +486,19 @@ function estimateAtDelta(job: DeltaJob): DeltaEstimate {
     tfCi: tf.interval,
     weakInstrument: weak,
   };
+}
+
+/** The wild cluster bootstrap when asked for at this delta and the clusters are fewer than 50. */
+function bootstrapFor(job: DeltaJob, design: ReturnType<typeof withVariance>, d: Float64Array): WildBootstrapResult | null {
+  if (!job.bootstrap || !design.clusters || design.clusters.count >= WILD_BOOTSTRAP_MAX_CLUSTERS) return null;
+  return wildClusterBootstrap({
+    design,
+    y: gather(job.y, job.idx),
+    d,
+    seed: job.bootstrap.seed,
+    level: job.level,
+    ...(job.bootstrap.reps !== undefined ? { reps: job.bootstrap.reps } : {}),
+  });
 }
 
 /**

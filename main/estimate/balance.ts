@@ -2,7 +2,9 @@
 // 2021): each covariate X is regressed on the offer Z and the APS among units with 0 < APS < 1;
 // conditional on the APS the offer is as good as random there, so the coefficient on Z should be
 // near zero. Reported per covariate: the difference (coefficient on Z), its robust SE (HC1, or
-// CR1 with clusters), the two-sided normal p-value and the standardized difference.
+// CR1 with clusters), the two-sided p-value (normal with HC1; t(G − 1) with CR1 and G clusters,
+// the common small-G correction of Cameron, Gelbach & Miller 2008 — student-t.ts) and the
+// standardized difference.
 //
 // Standardized difference: the APS-adjusted difference divided by √((s₁² + s₀²)/2), s₁² and s₀²
 // the covariate's sample variances among offered and not-offered boundary units (Rosenbaum &
@@ -19,7 +21,6 @@
 // a warning, and the degrees of freedom count only those tested.
 
 import { chiSquareSurvival } from './chi-square.ts';
-import { normalCritical, twoSidedNormalP } from './inference.ts';
 import {
   cachedFactor,
   createDesignCache,
@@ -34,6 +35,7 @@ import {
 } from './offer-design.ts';
 import { APS_NAME, type PropensityColumns } from './aps-iv.ts';
 import { EstimateInputError } from './errors.ts';
+import { referenceFor } from './student-t.ts';
 import { gather, globalClusterCodes, indicesOf, sameIndices, subsetClusters } from './subset.ts';
 import type { ClusterIds, EstimateWarning, NamedColumn } from './types.ts';
 import type { ClusterCodes } from './variance.ts';
@@ -61,6 +63,8 @@ export interface BalanceRow {
   standardizedDiff: number | null;
   meanOffered: number | null;
   meanNotOffered: number | null;
+  /** Clusters in the row's sample when its SE is cluster-robust (CR1), else null. */
+  clusters: number | null;
 }
 
 export interface BalanceJoint {
@@ -90,7 +94,7 @@ const JOINT_TOLERANCE = 1e-10;
 
 export function balanceChecks(input: BalanceInput): BalanceResult {
   const n = input.offer.values.length;
-  const critical = normalCritical(input.level ?? 0.95);
+  const level = input.level ?? 0.95;
   for (const c of input.covariates) {
     if (c.values.length !== n) {
       throw new EstimateInputError('length-mismatch', `The covariate "${c.name}" has ${c.values.length} values but the offer column has ${n}; every column needs one value per unit.`);
@@ -150,6 +154,7 @@ export function balanceChecks(input: BalanceInput): BalanceResult {
         standardizedDiff: null,
         meanOffered: null,
         meanNotOffered: null,
+        clusters: null,
       };
       rows.push(row);
       if (!design) return;
@@ -158,10 +163,12 @@ export function balanceChecks(input: BalanceInput): BalanceResult {
       const fit = offerFit(design, x);
       rowFits[j] = fit;
       const se = Math.sqrt(offerCovarianceMatrix(design, [fit.residuals])[0]!);
+      const ref = referenceFor(level, design.clusters?.count);
       row.diff = fit.coef;
       row.se = se;
-      row.p = twoSidedNormalP(fit.coef / se);
-      row.ci = [fit.coef - critical * se, fit.coef + critical * se];
+      row.p = ref.p(fit.coef / se);
+      row.ci = [fit.coef - ref.critical * se, fit.coef + ref.critical * se];
+      row.clusters = design.clusters?.count ?? null;
       const g = groupMoments(x, z);
       row.meanOffered = g.mean1;
       row.meanNotOffered = g.mean0;

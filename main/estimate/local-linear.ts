@@ -9,7 +9,8 @@
 //     a kernel-weighted regression on [1, Z, u, Z·u], u = x − c (the ratio is the 2SLS with Z as
 //     the instrument and the same controls in both stages: Imbens & Lemieux 2008, §4.3), so the
 //     regression core (tsls.ts) gives the estimate and its heteroskedasticity-robust SE (HC1 of
-//     the weighted fit, or CR1 with clusters). This is the conventional SE, not the robust
+//     the weighted fit, or CR1 with clusters; with CR1 the interval and p-value refer to t(G − 1),
+//     G the clusters within the bandwidth — student-t.ts). This is the conventional SE, not the robust
 //     bias-corrected interval of Calonico, Cattaneo & Titiunik (2014), which is not implemented.
 //   - bandwidth: Imbens & Kalyanaraman (2012), "Optimal bandwidth choice for the regression
 //     discontinuity estimator", REStud 79(3):933–959, the three-step plug-in with regularization
@@ -20,9 +21,9 @@
 //     not implemented here.
 
 import { EstimateInputError } from './errors.ts';
-import { normalCritical, twoSidedNormalP } from './inference.ts';
 import { ols } from './ols.ts';
 import { tsls } from './tsls.ts';
+import { referenceFor } from './student-t.ts';
 import { formatNumber } from './subset.ts';
 import type { ClusterIds, EstimateWarning, NamedColumn } from './types.ts';
 import type { CompiledProgram } from '../rules/ir.ts';
@@ -189,12 +190,14 @@ export interface LocalLinearResult {
   se: number;
   ci: [number, number];
   p: number;
+  /** Clusters within the bandwidth when the SE is cluster-robust (CR1), else null. */
+  clusters: number | null;
   warnings: EstimateWarning[];
 }
 
 export function localLinear(input: LocalLinearInput): LocalLinearResult {
   const warnings: EstimateWarning[] = [];
-  const critical = normalCritical(input.level ?? 0.95);
+  const level = input.level ?? 0.95;
   const n0 = input.running.length;
   // Units with every value observed; the others are counted.
   const keep: number[] = [];
@@ -243,7 +246,10 @@ export function localLinear(input: LocalLinearInput): LocalLinearResult {
   const rf = ols(outcome, [...controls, instrument], options);
   const rfz = rf.coefficients.find((c) => c.name === 'offer')!;
   const outcomeJump = { coef: rfz.estimate, se: rfz.se };
-  // the estimate with its normal-reference inference, shared by the sharp and fuzzy designs
+  // Normal reference with HC1; t(G − 1) with CR1 and G clusters in the bandwidth (student-t.ts).
+  const ref = referenceFor(level, rf.clusters);
+  const critical = ref.critical;
+  // the estimate with its inference, shared by the sharp and fuzzy designs
   const result = (est: { estimate: number; se: number }, takeUpJump: LocalLinearResult['takeUpJump'], extra: EstimateWarning[]): LocalLinearResult => ({
     bandwidth: h,
     bandwidthSource: ik ? 'IK 2012' : 'given',
@@ -255,7 +261,8 @@ export function localLinear(input: LocalLinearInput): LocalLinearResult {
     estimate: est.estimate,
     se: est.se,
     ci: [est.estimate - critical * est.se, est.estimate + critical * est.se],
-    p: twoSidedNormalP(est.estimate / est.se),
+    p: ref.p(est.estimate / est.se),
+    clusters: rf.clusters,
     warnings: [...warnings, ...extra],
   });
   if (!input.treatment) return result(rfz, null, []);

@@ -84,9 +84,3 @@ export interface OlsResult extends RegressionResult {
   /** Centred R² with an intercept, uncentred (1 − RSS/Σy²) without. */
   rSquared: number;
 }
-
-/** Dense cluster codes 0..count−1, in order of first appearance. */
-export interface ClusterCodes {
-  codes: Int32Array;
-  count: number;
-}

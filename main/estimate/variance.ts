@@ -17,12 +17,12 @@
 
 import { EstimateInputError } from './errors.ts';
 import { clusterMeat, inverseGram, leverages, sandwich, weightedMeat, type Decomposition } from './linalg.ts';
-import type { ClusterCodes, ClusterIds, VarianceType } from './types.ts';
-
-export type { ClusterCodes };
-import { globalClusterCodes } from './subset.ts';
+import type { ClusterIds, VarianceType } from './types.ts';
+import { globalClusterCodes, type ClusterCodes } from './cluster-codes.ts';
 
 export const VARIANCE_TYPES: readonly VarianceType[] = ['classical', 'HC0', 'HC1', 'HC2', 'HC3', 'CR1'];
+
+export type { ClusterCodes };
 
 /** Map cluster ids to dense codes; refuses missing ids with the position of the first one. */
 export function clusterCodes(ids: ClusterIds, n: number, what = 'the cluster column'): ClusterCodes {

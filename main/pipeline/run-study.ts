@@ -199,6 +199,8 @@ export async function runStudy(study: Study, options: RunOptions): Promise<Check
     propensity: propCols,
     controls,
     ...(clusters ? { clusters } : {}),
+    // few clusters: wild cluster bootstrap at the headline delta, seeded from the study's seed
+    wildBootstrap: { deltaIndex: headlineDeltaIndex(ps.deltas), seed: settings.seed },
   });
   warnings.push(...estimates.warnings);
   lap('estimate');
@@ -210,12 +212,15 @@ export async function runStudy(study: Study, options: RunOptions): Promise<Check
   warnings.push(...balance.warnings);
   const zBinary = Array.prototype.every.call(z, (v: number) => v === 0 || v === 1);
   const dBinary = !data.treatment || Array.prototype.every.call(data.treatment, (v: number) => v === 0 || v === 1);
-  const compliers = covariates.length && zBinary && dBinary
-    ? complierProfiles({ covariates, offer: z, ...(data.treatment ? { treatment: data.treatment } : {}), propensity: propCols })
-    : [];
-  for (const c of compliers) warnings.push(...c.warnings);
   const composition = boundaryComposition(program, { deltas: ps.deltas, aps: ps.aps, straddle: ps.straddle });
   warnings.push(...composition.warnings);
+  // κ only where the offer probability is a known lottery probability for every unit near the edge
+  const lottery = prepared.instrument.source !== 'formula';
+  const assignmentKnown = composition.byDelta.map((c) => lottery && c.boundary > 0 && c.lotteryOnly === c.boundary);
+  const compliers = covariates.length && zBinary && dBinary
+    ? complierProfiles({ covariates, offer: z, ...(data.treatment ? { treatment: data.treatment } : {}), propensity: propCols, controls, ...(clusters ? { clusters } : {}), assignmentKnown })
+    : [];
+  for (const c of compliers) warnings.push(...c.warnings);
   warnings.push(...resolutionWarnings(program, cols, ps.scales, ps.deltas).map(({ code, message }) => ({ code, message })));
   const density = densityChecksForProgram(program, cols);
   for (const d of density) warnings.push(...d.warnings.map((w) => ({ ...w, message: `${d.description}: ${w.message}` })));

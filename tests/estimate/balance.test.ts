@@ -9,6 +9,7 @@ import { describe, expect, it } from 'vitest';
 import { balanceChecks, jointWald } from '../../main/estimate/balance.ts';
 import { chiSquareSurvival } from '../../main/estimate/chi-square.ts';
 import { ols } from '../../main/estimate/ols.ts';
+import { tCritical, twoSidedTP } from '../../main/estimate/student-t.ts';
 import type { NamedColumn } from '../../main/estimate/types.ts';
 import { column, rng } from './random.ts';
 
@@ -66,7 +67,7 @@ describe('balance rows', () => {
   const pick = (v: Float64Array) => Float64Array.from(rows, (i) => v[i]!);
 
   for (const clustered of [false, true]) {
-    it(`${clustered ? 'CR1' : 'HC1'}: difference and SE are the coefficient on Z of X on [1, APS, Z] (ols.ts); p and interval are normal`, () => {
+    it(`${clustered ? 'CR1' : 'HC1'}: difference and SE are the coefficient on Z of X on [1, APS, Z] (ols.ts); p and interval are normal (HC1) or t(G − 1) (CR1)`, () => {
       const result = balanceChecks({ covariates: x.covariates, offer: col('Z', x.z), propensity: { deltas: [0.2], aps: [x.aps] }, ...(clustered ? { clusters: x.g } : {}) });
       expect(result.rows.length).toBe(4);
       for (const row of result.rows) {
@@ -77,8 +78,17 @@ describe('balance rows', () => {
         expect(row.n).toBe(rows.length);
         expect(row.diff!).toBeCloseTo(ref.estimate, 10);
         expect(row.se! / ref.se).toBeCloseTo(1, 10);
-        expect(row.p!).toBeCloseTo(ref.p, 10);
-        expect(row.ci![0]).toBeCloseTo(ref.ci[0], 10);
+        if (clustered) {
+          // t(G − 1) reference with G = 19 clusters (student-t.ts; Cameron, Gelbach & Miller 2008)
+          expect(row.clusters).toBe(19);
+          expect(row.p!).toBeCloseTo(twoSidedTP(ref.estimate / ref.se, 18), 10);
+          expect(row.ci![0]).toBeCloseTo(ref.estimate - tCritical(0.95, 18) * ref.se, 10);
+          expect(row.p!).toBeGreaterThan(ref.p);
+        } else {
+          expect(row.clusters).toBeNull();
+          expect(row.p!).toBeCloseTo(ref.p, 10);
+          expect(row.ci![0]).toBeCloseTo(ref.ci[0], 10);
+        }
       }
       expect(result.joint[0]!.variance).toBe(clustered ? 'CR1' : 'HC1');
       expect(result.joint[0]!.clusters).toBe(clustered ? 19 : null);

@@ -16,6 +16,7 @@ import { describe, expect, it } from 'vitest';
 import { computePropensity } from '../../main/design/propensity.ts';
 import { estimateApsIv } from '../../main/estimate/aps-iv.ts';
 import { ikBandwidth, IK_KERNEL_CONSTANT, localLinear, singleCutoff } from '../../main/estimate/local-linear.ts';
+import { tCritical, twoSidedTP } from '../../main/estimate/student-t.ts';
 import { verdicts } from '../../main/rules/atoms.ts';
 import { compile, cont, disc } from '../design/helpers.ts';
 import { column, rng } from './random.ts';
@@ -109,6 +110,21 @@ describe('local-linear estimate', () => {
     const meat = X.transpose().mmul(Matrix.diag(rows.map((i, j) => (1 - Math.abs(x[i]!) / h) ** 2 * e[j]! ** 2))).mmul(X);
     const v = bread.mmul(meat).mmul(bread).mul(rows.length / (rows.length - 4));
     expect(ll.se / Math.sqrt(v.get(1, 1))).toBeCloseTo(1, 9);
+  });
+
+  it('with clusters: CR1, the cluster count within the bandwidth, and t(G − 1) intervals (Cameron, Gelbach & Miller 2008)', () => {
+    const r = rng(81);
+    const n = 800;
+    const x = column(n, () => -1 + 2 * r.uniform());
+    const z = x.map((v) => (v >= 0 ? 1 : 0));
+    const y = column(n, (i) => z[i]! * 0.5 + x[i]! + r.normal());
+    const g = Array.from({ length: n }, (_, i) => i % 9);
+    const ll = localLinear({ running: x, cutoff: 0, outcome: y, offer: z, bandwidth: 0.6, clusters: g });
+    expect(ll.clusters).toBe(9);
+    const c = tCritical(0.95, 8);
+    expect(ll.ci[1] - ll.estimate).toBeCloseTo(c * ll.se, 10);
+    expect(ll.p).toBeCloseTo(twoSidedTP(ll.estimate / ll.se, 8), 12);
+    expect(localLinear({ running: x, cutoff: 0, outcome: y, offer: z, bandwidth: 0.6 }).clusters).toBeNull();
   });
 
   it('fuzzy design: estimate = outcome jump / take-up jump exactly', () => {
