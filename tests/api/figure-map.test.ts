@@ -30,7 +30,7 @@ async function recordRun(path: string): Promise<number> {
   return (r as { value: EvaluateReport }).value.runId!;
 }
 
-beforeAll(async () => { studyPath = writeFixture(2500); runId = await recordRun(studyPath); });
+beforeAll(async () => { studyPath = writeFixture(2500); runId = await recordRun(studyPath); }, 120_000);
 
 const map = (args: Record<string, unknown>) => callApi('figure.map', { runId, ...args }, ctx);
 const figure = async (args: Record<string, unknown>): Promise<MapFigure> => {

@@ -27,7 +27,7 @@ beforeAll(async () => {
     studyPath, outDir: join(dirname(studyPath), 'run'), formats: ['html'], workspacePath: workspaceLayout(workspaceDir).workspacePath, workers: 0,
   }));
   rmSync(join(dirname(studyPath), 'cases.csv')); // from here on, running the study again would fail
-});
+}, 120_000);
 
 describe('a stored run', () => {
   it('reopens complete, with its files and the fingerprint of the study as run', async () => {
