@@ -25,24 +25,32 @@ export function httpTransport(token: string, fetchImpl: Fetch, base = ''): Trans
     if (r.status === 401 || r.status === 403) throw new Error('this page is not allowed to call the engine; open the address the terminal printed');
     return r.json();
   };
+  /** Poll a job to its answer, passing progress on; cancel it when the signal aborts. Null when the server does not know it. */
+  const follow = async (jobId: string, options: CallOptions): Promise<ApiResult<unknown> | null> => {
+    let cancelSent = false;
+    const cancel = () => { if (!cancelSent) { cancelSent = true; void post(`/api/jobs/${jobId}/cancel`, {}); } };
+    options.signal?.addEventListener('abort', cancel);
+    if (options.signal?.aborted) cancel();
+    try {
+      for (;;) {
+        const s = (await post(`/api/jobs/${jobId}`, {})) as Partial<JobStatus>;
+        if (s.state === undefined) return null; // 404: no such job (the server was restarted)
+        if (s.state === 'done' && s.result) return s.result;
+        if (s.progress) options.onProgress?.(s.progress);
+        await sleep(POLL_MS);
+      }
+    } finally {
+      options.signal?.removeEventListener('abort', cancel);
+    }
+  };
   return {
     async call(method, args, options: CallOptions) {
-      if (!options.onProgress && !options.signal) return (await post('/api/call', { method, args })) as ApiResult<unknown>;
+      if (!options.onProgress && !options.signal && !options.onStarted) return (await post('/api/call', { method, args })) as ApiResult<unknown>;
       const { jobId } = (await post('/api/jobs', { method, args })) as { jobId: string };
-      let cancelSent = false;
-      const cancel = () => { if (!cancelSent) { cancelSent = true; void post(`/api/jobs/${jobId}/cancel`, {}); } };
-      options.signal?.addEventListener('abort', cancel);
-      if (options.signal?.aborted) cancel();
-      try {
-        for (;;) {
-          const s = (await post(`/api/jobs/${jobId}`, {})) as JobStatus;
-          if (s.state === 'done' && s.result) return s.result;
-          if (s.progress) options.onProgress?.(s.progress);
-          await sleep(POLL_MS);
-        }
-      } finally {
-        options.signal?.removeEventListener('abort', cancel);
-      }
+      options.onStarted?.(jobId);
+      const answer = await follow(jobId, options);
+      return answer ?? { ok: false, error: { kind: 'input', problems: [{ path: '', message: 'The engine lost track of this work (it was restarted). Start it again.' }] } };
     },
+    resume: (jobId, options) => (/^[0-9a-f]{24}$/.test(jobId) ? follow(jobId, options) : Promise.resolve(null)),
   };
 }

@@ -47,6 +47,29 @@ describe('browser mode transport', () => {
     expect(seen).toEqual([1, 2]);
     expect(f.sent.some((s) => s.url === `/api/jobs/${'a'.repeat(24)}/cancel`)).toBe(true);
   });
+  it('tells the job of a long call as it starts, and a reloaded page follows it again by that handle', async () => {
+    const id = 'b'.repeat(24);
+    let polls = 0;
+    const f = fakeFetch((s) => {
+      if (s.url === '/api/jobs') return { status: 200, body: { jobId: id } };
+      if (s.url === `/api/jobs/${id}`) {
+        polls++;
+        return polls < 4 ? { status: 200, body: { state: 'running', progress: { stage: 'import', done: polls, total: 4 } } } : { status: 200, body: { state: 'done', result: { ok: true, value: 42 } } };
+      }
+      return { status: 404, body: { error: 'No such job.' } };
+    });
+    const api = createApiClient(httpTransport('t', f.fetchImpl));
+    let handle = '';
+    const first = api.call('data.check', { study: {} }, { onStarted: (h) => { handle = h; } });
+    expect(await first).toEqual({ ok: true, value: 42 });
+    expect(handle).toBe(id);
+    polls = 1; // as after a reload: the job is still running on the host
+    const seen: number[] = [];
+    expect(await api.resume('data.check', handle, { onProgress: (p) => seen.push(p.done) })).toEqual({ ok: true, value: 42 });
+    expect(seen).toEqual([2, 3]);
+    expect(await api.resume('data.check', 'c'.repeat(24), {})).toBeNull(); // a job the host no longer knows
+    expect(await api.resume('data.check', '../etc', {})).toBeNull();
+  });
   it('turns a refused token into a plain answer, not an exception', async () => {
     const f = fakeFetch(() => ({ status: 403, body: {} }));
     const r = await createApiClient(httpTransport('bad', f.fetchImpl)).call('samples.list', {});
