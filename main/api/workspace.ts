@@ -10,6 +10,7 @@ import { openWorkspace } from '../store/workspace.ts';
 import { AVAILABLE_MEMO_FORMATS } from './evaluate.ts';
 import { refuse } from './context.ts';
 import { NO_WORKSPACE, workspaceLayout, type HostContext } from './host.ts';
+import { ensureFindings } from '../report/findings/index.ts';
 
 const MAX_RECENT = 12;
 
@@ -93,7 +94,7 @@ export async function recordedRun(args: WorkspaceRunArgs, ctx: HostContext = {})
         studyName: study.ok ? study.value.name : `study ${run.value.studyId}`,
         finishedAt: run.value.finishedAt,
         study: run.value.studyJson,
-        results: run.value.results as Results,
+        results: ensureFindings(run.value.results as Results) as Results,
       },
     };
   } finally {
