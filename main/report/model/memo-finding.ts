@@ -70,6 +70,12 @@ function outcomeFinding(ctx: MemoContext, i: number): Inline[] {
     runs.push(text(`For comparison, the ${many} compared who were not offered the benefit averaged `), num(r, `${p}.baseline.mean`, fmt), text('. '));
   }
   runs.push(...verdictRuns(f), ...elsewhereRuns(ctx, f));
+  if (f.clusters?.few) {
+    runs.push(text(` The ${many} come in only `), num(r, `findings.outcomes[${i}].clusters.count`, COUNT),
+      text(f.bootstrap !== null
+        ? ' groups whose outcomes may move together, so the usual interval can be too narrow; the verdict above also reads the interval built for few groups.'
+        : ' groups whose outcomes may move together, so the usual interval can be too narrow and no interval built for few groups was computed: read it with care.'));
+  }
   runs.push(text(` It holds for the `), stateRun(ctx.ledger.get(`${p}.n`), `${p}.n`, COUNT), text(` ${many} ${whoPhrase(ctx)}`));
   runs.push(r.estimand.kind === 'treatment'
     ? text(` who take the benefit when it is offered and not otherwise, not for all ${many} in the data.`)
