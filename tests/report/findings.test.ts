@@ -6,7 +6,12 @@
 
 import { beforeAll, describe, expect, it } from 'vitest';
 import type { OutcomeResults, ResultsCore } from '../../main/contract/results.ts';
-import { findingsOf } from '../../main/report/findings/index.ts';
+import { ensureFindings, findingsOf, withFindings } from '../../main/report/findings/index.ts';
+import type { Results } from '../../main/contract/results.ts';
+import { figureData } from '../../main/report/figure-data.ts';
+import { buildMemo } from '../../main/report/model/memo.ts';
+import { runsText } from '../../main/report/model/format.ts';
+import { suppressionLegend } from '../../main/report/model/suppress.ts';
 import { densityVerdict } from '../../main/report/findings/checks.ts';
 import { intervalOnZero, setOnZero } from '../../main/report/findings/intervals.ts';
 import type { StudyRun } from '../../main/pipeline/run-study.ts';
@@ -195,5 +200,35 @@ describe('on a run of the invented fixture study', () => {
     expect(findingsOf(rest)).toEqual({ headline, findings });
     expect(headline.index).toBe(1);
     expect(findings.design.kind).toBe('edge');
+  });
+  it('a run recorded before findings existed gets them stated; a newer one keeps its own', () => {
+    const { headline, findings, ...old } = run.results;
+    expect(ensureFindings(old)).toEqual(run.results);
+    const kept = { ...run.results, findings: { ...findings, instrument: { ...findings.instrument, verdict: 'weak' as const } } };
+    expect(ensureFindings(kept).findings.instrument.verdict).toBe('weak');
+    expect(headline.index).toBe(1);
+  });
+  it('the key finding words the verdict, the baseline and another delta whose interval covers zero', () => {
+    const r: Results = JSON.parse(JSON.stringify(run.results));
+    const b = r.outcomes[0]!.byDelta;
+    // headline: every interval excludes zero; the smallest delta: the usual interval covers it
+    Object.assign(b[1]!, { estimate: -30, ci: [-40, -20], arCi: [[-42, -18]], tfCi: [-41, -19] });
+    Object.assign(b[0]!, { estimate: -30, ci: [-60, 1] });
+    Object.assign(b[2]!, { estimate: -30, ci: [-35, -25] });
+    const restated = withFindings(r);
+    expect(restated.findings.outcomes[0]!.effect).toBe('distinguishable');
+    const doc = buildMemo(restated, figureData(run), { createdAt: '2025-03-12T09:30:00Z' });
+    const kf = doc.sections[0]!.blocks[0]!;
+    if (kf.kind !== 'keyFinding' || kf.body[0]!.kind !== 'paragraph') throw new Error('unexpected key finding');
+    const words = runsText(kf.body[0]!.runs, suppressionLegend(10));
+    expect(words).toContain('The data can tell this effect apart from no effect.');
+    expect(words).toContain('With a narrower neighbourhood around the limits, the interval includes zero');
+    expect(words).toMatch(/who were not offered the benefit averaged [\d,.]+ USD/);
+    // the robust set covering zero turns the verdict, and the key finding says which interval does
+    Object.assign(b[1]!, { arCi: [[null, null]] });
+    const robust = buildMemo(withFindings(r), figureData(run), { createdAt: '2025-03-12T09:30:00Z' });
+    const kf2 = robust.sections[0]!.blocks[0]!;
+    if (kf2.kind !== 'keyFinding' || kf2.body[0]!.kind !== 'paragraph') throw new Error('unexpected key finding');
+    expect(runsText(kf2.body[0]!.runs, suppressionLegend(10))).toContain('The usual interval does not include zero, but the wider interval that stays reliable when the offer changes little who receives the benefit does');
   });
 });
