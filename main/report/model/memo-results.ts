@@ -63,7 +63,7 @@ function outcomeSection(ctx: MemoContext, i: number): Section {
       num(r, `outcomes[${i}].ivNoControl.estimate`, { ...signed, ...(name.unit ? { unit: name.unit } : {}) }), text('. '));
   }
   if (cmp.length && head && head.estimate !== null) {
-    cmp.push(text(`The headline estimate near the edge is `), num(r, `outcomes[${i}].byDelta[${k}].estimate`, { ...signed, ...(name.unit ? { unit: name.unit } : {}) }),
+    cmp.push(text(`The headline estimate${r.findings.design.kind === 'edge' ? ' near the edge' : ''} is `), num(r, `outcomes[${i}].byDelta[${k}].estimate`, { ...signed, ...(name.unit ? { unit: name.unit } : {}) }),
       text(`. The wider comparisons mix the effect of the benefit with differences between the ${many} who get it and those who do not (selection: who is eligible and who takes it up is not random), which is why they differ from the estimate near the edge.`));
   }
   if (cmp.length) blocks.push({ kind: 'paragraph', runs: cmp });

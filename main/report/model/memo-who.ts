@@ -112,7 +112,7 @@ export function whoSection(ctx: MemoContext): Section {
     });
     const share = profile.complierShare;
     blocks.push({ kind: 'paragraph', runs: share !== null && nearShown
-      ? [text(`Among the ${many} near the edge, an estimated `), num(r, `compliers[${prof}].complierShare`, PERCENT),
+      ? [text(`Among the ${many} ${r.findings.design.kind === 'edge' ? 'near the edge' : 'compared'}, an estimated `), num(r, `compliers[${prof}].complierShare`, PERCENT),
         text(` take the benefit when offered and would not take it otherwise (the compliers, for whom the effect is measured). The table compares them with all ${many} and with everyone near the edge: where they differ, the effect for other ${many} may differ too.`)]
       : [text(`The table compares the ${many} near the edge and the compliers with all ${many}: where they differ, the effect for other ${many} may differ too.`)],
     });
