@@ -17,7 +17,7 @@ const root = process.argv[2] ? resolve(process.argv[2]) : resolve(dirname(fileUR
 const builtins = new Set(builtinModules.flatMap((m) => [m, `node:${m}`]));
 const forbiddenPackages = new Set(['electron', 'better-sqlite3', 'exceljs', 'pdfkit', 'docx', '@napi-rs/canvas', 'svelte']);
 
-const PURE = ['main/rules', 'main/design', 'main/estimate', 'main/report/model', 'main/report/caveats', 'main/contract', 'main/studyfile/validate'];
+const PURE = ['main/rules', 'main/design', 'main/estimate', 'main/report/model', 'main/report/caveats', 'main/report/findings', 'main/contract', 'main/studyfile/validate'];
 const PURE_EXCEPT = ['main/design/parallel'];
 const PURE_MAY_NOT_REACH = ['main/store', 'main/data', 'main/electron', 'main/design/parallel', 'app', 'main/api.ts', 'main/pipeline', 'main/cli.ts', 'main/serve.ts'];
 const APP_MAY_REACH_IN_MAIN = ['main/contract', 'main/report/charts'];

@@ -17,6 +17,7 @@ import { openWorkspace } from '../store/workspace.ts';
 import { AVAILABLE_MEMO_FORMATS } from './evaluate.ts';
 import { refuse } from './context.ts';
 import { NO_WORKSPACE, workspaceLayout, type HostContext } from './host.ts';
+import { ensureFindings } from '../report/findings/index.ts';
 
 const MAX_RECENT = 12;
 
@@ -100,7 +101,7 @@ export async function recordedRun(args: WorkspaceRunArgs, ctx: HostContext = {})
         studyName: study.ok ? study.value.name : `study ${run.value.studyId}`,
         finishedAt: run.value.finishedAt,
         study: run.value.studyJson,
-        results: run.value.results as Results,
+        results: ensureFindings(run.value.results as Results) as Results,
         status: run.value.status,
         studySha256: run.value.studySha256,
         outDir: run.value.outDir,

@@ -70,6 +70,142 @@ export interface OutcomeResults extends OutcomeEstimates {
   localLinear: LocalLinearResult | null;
 }
 
+/** The headline delta and why it was chosen (main/estimate/headline.ts). */
+export interface Headline {
+  delta: number;
+  why: string;
+  /** Index of the headline delta in settings.deltas. */
+  index: number;
+}
+
+/** Where the estimate's comparison comes from, at the headline delta (from the boundary composition). */
+export interface DesignFinding {
+  /** "edge": every boundary unit sits near a limit; "lottery": every one is there by the draw alone; "none": no boundary unit. */
+  kind: 'edge' | 'lottery' | 'edge and lottery' | 'none';
+  /** Shares of the boundary units at the headline delta: near a limit of the rule / offered by a draw far from any limit. */
+  edgeShare: number;
+  lotteryShare: number;
+  delta: number;
+  /** Boundary units at the headline delta (design.composition). */
+  boundary: number;
+}
+
+/** One interval's verdict on zero. "excludes": zero is outside; "covers": zero is inside or on its end. */
+export type ZeroVerdict = 'excludes' | 'covers';
+
+export interface OutcomeFinding {
+  column: string;
+  label: string;
+  effect: 'distinguishable' | 'not distinguishable' | 'not estimable';
+  /** Plain words: which interval covers zero, at which delta. */
+  because: string;
+  delta: number;
+  /** Each interval read at the headline delta; null when it was not computed or does not apply. */
+  usual: ZeroVerdict | null;
+  /** The weak-instrument-robust Anderson–Rubin set. */
+  anderson: ZeroVerdict | null;
+  /** The tF interval: read only when the first-stage F is below 104.7 (null otherwise). */
+  tf: ZeroVerdict | null;
+  /** The wild cluster bootstrap interval, when the results carry one at the headline delta. */
+  bootstrap: ZeroVerdict | null;
+  /** The intervals (by name) that cover zero at the headline delta. */
+  coveringZero: Array<'usual' | 'Anderson–Rubin' | 'tF' | 'bootstrap'>;
+  /** Other deltas whose usual 95% interval covers zero. */
+  coversZeroElsewhere: number[];
+  /** Deltas with no estimate. */
+  notEstimableAt: number[];
+  /** Mean outcome of the not-offered units near the edge at the headline delta (null when not carried). */
+  baseline: { mean: number; n: number } | null;
+  /** Clusters at the headline delta, when clustered; few below 50, then the note says what that means. */
+  clusters: { count: number; few: boolean; note: string } | null;
+}
+
+export interface InstrumentFinding {
+  verdict: 'strong' | 'adequate' | 'weak' | 'none';
+  /** Every delta where some outcome's first-stage F is below 10. */
+  weakAt: number[];
+  /** Every delta where some outcome's F is below 104.7 (the tF interval is the one to read there). */
+  belowFullAt: number[];
+  /** Smallest F and where. */
+  minF: number | null;
+  minFDelta: number | null;
+}
+
+export interface BalanceFlag {
+  covariate: string;
+  delta: number;
+  standardizedDiff: number | null;
+  p: number | null;
+  adjustedP: number | null;
+  /** "large difference": |standardized difference| > 0.25; "adjusted p": Holm-adjusted p < 0.05; "unadjusted p only": p < 0.05 before adjustment only. */
+  why: Array<'large difference' | 'adjusted p' | 'unadjusted p only'>;
+}
+
+export interface BalanceFinding {
+  verdict: 'not checked' | 'balanced' | 'differences to read' | 'imbalance';
+  /** Per-characteristic tests run (every delta), adjusted together by Holm (1979). */
+  tests: number;
+  flagged: BalanceFlag[];
+  /** Joint tests run (one per delta) and those below 0.05 after Holm adjustment across deltas. */
+  jointTests: number;
+  jointRejectedAt: number[];
+  /** Advice that fits the flags: read a smaller delta only when the smallest delta is clean. */
+  advice: 'none' | 'read the smaller delta' | 'check the inputs and characteristics';
+}
+
+export interface DensityFinding {
+  path: string;
+  description: string;
+  atom: number;
+  p: number | null;
+  verdict: 'jump' | 'weak sign of sorting' | 'no jump' | 'did not run';
+}
+
+export interface ManipulationFinding {
+  verdict: 'not tested' | 'no jump' | 'weak sign of sorting' | 'jump';
+  /** Density tests attempted and those that produced a p-value. */
+  tests: number;
+  ran: number;
+  limits: DensityFinding[];
+}
+
+export interface SensitivityFinding {
+  column: string;
+  /** Always descriptive: the estimates at different deltas come from nested samples, so no test of their difference is made. */
+  estimates: Array<{ delta: number; estimate: number | null }>;
+  range: [number, number] | null;
+  signChanges: boolean;
+  /** Pairs where one delta's estimate lies outside the other's 95% interval (descriptive, not a test). */
+  outside: Array<{ delta: number; outsideIntervalOf: number }>;
+}
+
+export interface FidelityFinding {
+  verdict: 'not compared' | 'follows the formula' | 'differs from the formula';
+  share: number | null;
+}
+
+export interface LocalLinearFinding {
+  column: string;
+  bandwidth: number;
+  /** Units with positive kernel weight, and their share of the units with this outcome. */
+  units: number;
+  share: number;
+  /** The bandwidth takes in most of the data: the check is close to a global fit. */
+  nearGlobal: boolean;
+}
+
+/** Every verdict the app, the memo and the command line word (CLI.md format 1.1 `findings`). */
+export interface Findings {
+  design: DesignFinding;
+  outcomes: OutcomeFinding[];
+  instrument: InstrumentFinding;
+  balance: BalanceFinding;
+  manipulation: ManipulationFinding;
+  sensitivity: SensitivityFinding[];
+  fidelity: FidelityFinding;
+  localLinear: LocalLinearFinding[];
+}
+
 export interface Results {
   fenceline: 1;
   version: string;
@@ -94,4 +230,9 @@ export interface Results {
   thresholdChanges: ThresholdChangeResult | null;
   localLinearNote: string | null;
   warnings: Warning[];
+  headline: Headline;
+  findings: Findings;
 }
+
+/** Results before the findings are written (main/report/findings states them from the rest). */
+export type ResultsCore = Omit<Results, 'headline' | 'findings'>;

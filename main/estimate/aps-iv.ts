@@ -113,6 +113,9 @@ export interface DeltaEstimate {
   /** Wild cluster bootstrap p-value of β = 0 and interval (CR1 with fewer than 50 clusters, at
    * the headline delta only); null otherwise. */
   wildBootstrap: WildBootstrapResult | null;
+  /** Mean outcome of the not-offered units in the sample (their count is notOffered): the level
+   * the effect is read against. Null when none is not offered. */
+  baseline: { mean: number; n: number } | null;
   /** Controls kept in the model, the APS included when it was not dropped. */
   controls: string[];
   /** Columns dropped as collinear (e.g. a constant APS in a pure lottery). */
@@ -306,10 +309,22 @@ function emptyEstimate(job: DeltaJob, offered: number, warnings: EstimateWarning
     clusters: null,
     referenceDf: null,
     wildBootstrap: null,
+    baseline: baselineOf(job),
     controls: [],
     dropped: [],
     warnings,
   };
+}
+
+/** Mean outcome of the not-offered units of the sample (unweighted). */
+function baselineOf(job: DeltaJob): { mean: number; n: number } | null {
+  let sum = 0;
+  let n = 0;
+  for (let j = 0; j < job.idx.length; j++) {
+    const i = job.idx[j]!;
+    if (job.offer.values[i] === 0) { sum += job.y[i]!; n++; }
+  }
+  return n > 0 ? { mean: sum / n, n } : null;
 }
 
 function estimateAtDelta(job: DeltaJob): DeltaEstimate {

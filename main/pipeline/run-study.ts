@@ -4,7 +4,7 @@
 
 import { basename, isAbsolute, resolve } from 'node:path';
 import type { Study } from '../contract/study.ts';
-import type { ExclusionReason, Results, Warning } from '../contract/results.ts';
+import type { ExclusionReason, Results, ResultsCore, Warning } from '../contract/results.ts';
 import { readJoins } from '../data/join.ts';
 import { mapStudyColumns, type ColumnSpec, type MappedData } from '../data/map-columns.ts';
 import { readTable } from '../data/read-table.ts';
@@ -25,6 +25,7 @@ import { deltaSensitivity } from '../estimate/sensitivity.ts';
 import { thresholdChanges } from '../estimate/threshold-change.ts';
 import type { NamedColumn } from '../estimate/types.ts';
 import { prepareUnits, type PreparedUnits } from './prepare-units.ts';
+import { withFindings } from '../report/findings/index.ts';
 import { lowerValidatedProgram } from '../rules/compile.ts';
 import type { CompiledProgram } from '../rules/ir.ts';
 import type { Checked, Problem } from '../rules/types.ts';
@@ -259,7 +260,7 @@ export async function runStudy(study: Study, options: RunOptions): Promise<Check
   lap('checks');
 
   const rowsExcluded: ExclusionReason[] = [...mapped.excluded, ...prepared.excludedByRule];
-  const results: Results = {
+  const results: Results = withFindings<ResultsCore>({
     fenceline: 1,
     version: SOFTWARE_VERSION,
     study: {
@@ -305,7 +306,7 @@ export async function runStudy(study: Study, options: RunOptions): Promise<Check
     thresholdChanges: thresholds,
     localLinearNote: cutoff.applicable ? null : `The local-linear cross-check applies to one running variable with one deterministic cut-off; here ${cutoff.reason}.`,
     warnings: dedupe(warnings),
-  };
+  });
   options.onProgress?.({ stage: 'checks', done: 1, total: 1 });
   stopIfCancelled();
   return {

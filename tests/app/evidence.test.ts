@@ -1,47 +1,62 @@
 import { describe, expect, it } from 'vitest';
-import { balanceVerdict, effectVerdict, fidelityVerdict, instrumentVerdict, manipulationVerdict, sensitivitySpec } from '../../app/lib/evidence.ts';
+import { balanceVerdict, compositionVerdict, effectVerdict, fidelityVerdict, headlineNote, instrumentVerdict, manipulationVerdict, sensitivitySpec } from '../../app/lib/evidence.ts';
 import { interval, num, pValue } from '../../app/lib/format.ts';
-import type { OutcomeResults, Results } from '../../main/contract/results.ts';
+import type { OutcomeResults, Results, ResultsCore } from '../../main/contract/results.ts';
+import { withFindings } from '../../main/report/findings/index.ts';
 
-// Only the fields the verdicts read; the rest of results.json is not needed here.
-function results(over: { F?: number[]; ci?: [number, number]; jointP?: number[]; densityP?: number[]; agree?: number } = {}): Results {
+// Only the fields the findings read; the rest of results.json is not needed here. The screen words
+// results.findings, stated here by main/report/findings as the pipeline does.
+function results(over: { F?: number[]; ci?: [number, number]; jointP?: number[]; densityP?: Array<number | null>; agree?: number; lotteryOnly?: number } = {}): Results {
   const deltas = [0.05, 0.1, 0.2];
   const byDelta = deltas.map((delta, i) => ({
     delta, n: 100, offered: 50, notOffered: 50, estimable: true, estimate: -40, se: 10, ci: over.ci ?? [-60, -20], p: 0.001,
-    firstStage: { coef: 0.5, se: 0.05, F: over.F?.[i] ?? 50 }, reducedForm: null, arCi: null, arShape: null, tfCi: null, weakInstrument: false,
-    variance: 'HC1', clusters: null, controls: [], dropped: [], warnings: [],
+    firstStage: { coef: 0.5, se: 0.05, F: over.F?.[i] ?? 500 }, reducedForm: null, arCi: [[-70, -10]], arShape: 'interval', tfCi: [-65, -15], weakInstrument: false,
+    variance: 'HC1', clusters: null, baseline: { mean: 120, n: 50 }, controls: [], dropped: [], warnings: [],
   }));
-  const outcome = { column: 'Y', label: 'arrears', missing: 0, byDelta, naiveOls: { estimate: -5, se: 1, n: 1000, warnings: [] }, ivNoControl: { estimate: -15, se: 2, n: 1000, warnings: [] } } as unknown as OutcomeResults;
-  return {
+  const outcome = { column: 'Y', label: 'arrears', missing: 0, byDelta, naiveOls: { estimate: -5, se: 1, n: 1000, warnings: [] }, ivNoControl: { estimate: -15, se: 2, n: 1000, warnings: [] }, localLinear: null } as unknown as OutcomeResults;
+  return withFindings({
     settings: { deltas }, estimand: { kind: 'treatment', note: '', treatmentPer: 1 }, outcomes: [outcome],
-    balance: over.jointP ? [{ covariate: 'X' }] : [], balanceJoint: (over.jointP ?? []).map((p, i) => ({ delta: deltas[i], p })),
-    density: (over.densityP ?? []).map((p) => ({ p, description: 'income at the limit' })),
+    design: { composition: deltas.map((delta) => ({ delta, boundary: 100, atoms: [], several: 0, lotteryOnly: over.lotteryOnly ?? 0 })) },
+    balance: over.jointP ? [{ covariate: 'X', delta: 0.1, standardizedDiff: 0.01, p: 0.5 }] : [], balanceJoint: (over.jointP ?? []).map((p, i) => ({ delta: deltas[i], p })),
+    density: (over.densityP ?? []).map((p, i) => ({ p, description: 'income at the limit', path: `p${i}`, atom: i })),
     fidelity: over.agree === undefined ? null : { compared: 1000, agree: over.agree, disagree: 1000 - over.agree, offeredAgainstRule: 0, refusedAgainstRule: 1000 - over.agree, basis: '' },
-  } as unknown as Results;
+  } as unknown as ResultsCore) as Results;
 }
 
-describe('the Evidence screen\'s one-line verdicts', () => {
-  it('calls an effect clear only when its 95% interval excludes zero', () => {
-    expect(effectVerdict(results(), results().outcomes[0]!).tone).toBe('good');
-    const r = results({ ci: [-60, 5] });
-    expect(effectVerdict(r, r.outcomes[0]!).text).toMatch(/includes zero/);
+describe('the Evidence screen\'s one-line verdicts word results.findings', () => {
+  it('calls an effect distinguishable only when the findings do, and says which interval covers zero', () => {
+    const r = results();
+    expect(effectVerdict(r, r.outcomes[0]!)).toMatchObject({ tone: 'good', finding: 'distinguishable' });
+    expect(effectVerdict(r, r.outcomes[0]!).text).toMatch(/Those not offered averaged 120/);
+    const c = results({ ci: [-60, 5] });
+    expect(effectVerdict(c, c.outcomes[0]!).text).toMatch(/Not distinguishable from no effect: at delta 0\.1, the usual 95% interval \(-60 to 5\) covers zero/);
+    // the screen reads the findings, not the intervals: a changed finding changes the verdict
+    c.findings.outcomes[0]!.effect = 'distinguishable';
+    expect(effectVerdict(c, c.outcomes[0]!).finding).toBe('distinguishable');
   });
-  it('flags a first-stage F below 10 (Staiger & Stock 1997) and names the radius', () => {
-    expect(instrumentVerdict(results({ F: [10, 20, 30] })).tone).toBe('good');
-    const weak = instrumentVerdict(results({ F: [9.9, 20, 30] }));
+  it('reports a weak instrument at every delta where it is weak', () => {
+    expect(instrumentVerdict(results({ F: [10, 200, 300] })).finding).toBe('adequate');
+    const weak = instrumentVerdict(results({ F: [9.9, 200, 8] }));
     expect(weak.tone).toBe('caution');
-    expect(weak.text).toMatch(/δ = 0\.05/);
+    expect(weak.text).toMatch(/Weak at δ = 0\.05, δ = 0\.2/);
   });
-  it('flags balance and density tests at p < 0.05 (5%, common practice), and says when nothing was tested', () => {
-    expect(balanceVerdict(results({ jointP: [0.2, 0.5, 0.9] })).tone).toBe('good');
-    expect(balanceVerdict(results({ jointP: [0.2, 0.04, 0.9] })).text).toMatch(/δ = 0\.1/);
+  it('balance adjusted for the number of tests; density with weak signs and tests not run counted', () => {
+    expect(balanceVerdict(results({ jointP: [0.2, 0.5, 0.9] })).finding).toBe('balanced');
+    expect(balanceVerdict(results({ jointP: [0.2, 0.04, 0.9] })).finding).toBe('balanced'); // adjusted 0.12
+    expect(balanceVerdict(results({ jointP: [0.2, 0.01, 0.9] })).text).toMatch(/joint test at δ = 0\.1/);
     expect(balanceVerdict(results()).tone).toBe('neutral');
     expect(manipulationVerdict(results({ densityP: [0.3, 0.01] })).tone).toBe('caution');
-    expect(manipulationVerdict(results({ densityP: [0.3] })).tone).toBe('good');
+    expect(manipulationVerdict(results({ densityP: [0.3, 0.07] })).text).toMatch(/^Weak sign of sorting/);
+    expect(manipulationVerdict(results({ densityP: [0.3, null] })).text).toMatch(/2 density tests, 1 ran \(1 could not\); p is at least 0\.10/);
+  });
+  it('states the design kind and the headline delta with why', () => {
+    expect(compositionVerdict(results({ lotteryOnly: 80 })).text).toMatch(/^Edge and lottery: .* 80\.0% are there by the draw alone/);
+    expect(compositionVerdict(results({ lotteryOnly: 100 })).text).toMatch(/not local to an edge/);
+    expect(headlineNote(results())).toBe('The headline delta is 0.1, the middle of the study\'s deltas; the row in bold.');
   });
   it('reports fidelity as the share of recorded decisions the formula reproduces', () => {
     expect(fidelityVerdict(results({ agree: 996 })).text).toMatch(/99\.6% of the 1,000/);
-    expect(fidelityVerdict(results({ agree: 900 })).tone).toBe('caution');
+    expect(fidelityVerdict(results({ agree: 985 })).tone).toBe('caution');
     expect(fidelityVerdict(results()).tone).toBe('neutral');
   });
   it('marks every verdict with a sign as well as a colour', () => {

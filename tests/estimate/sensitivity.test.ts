@@ -9,7 +9,7 @@ function entry(delta: number, estimate: number | null, ci: [number, number] | nu
   return {
     delta, n: 100, offered: 50, notOffered: 50, estimable: estimate !== null, estimate, se: null, ci, p: null,
     firstStage: null, reducedForm: null, arCi: null, arShape: null, tfCi: null, weakInstrument: null,
-    variance: 'HC1', clusters: null, referenceDf: null, wildBootstrap: null, controls: [], dropped: [], warnings: [],
+    variance: 'HC1', clusters: null, referenceDf: null, wildBootstrap: null, baseline: null, controls: [], dropped: [], warnings: [],
   };
 }
 

@@ -1,4 +1,4 @@
-// Weak instrument: at some delta the offer moves take-up too little (robust first-stage F below
+// Weak instrument (findings.instrument.weakAt, every delta where it is weak): at some delta the offer moves take-up too little (robust first-stage F below
 // 10; Staiger and Stock 1997, Econometrica 65:557–586). Then the usual interval is unreliable and
 // the tF interval (Lee, McCrary, Moreira and Porter 2022, AER 112(10):3260–3290) or the
 // Anderson–Rubin set should be read instead.
@@ -13,7 +13,7 @@ import { para, type Caveat } from './types.ts';
 export function weakInstrumentCaveat(r: Results): Caveat | null {
   const weak: Inline[][] = [];
   r.outcomes.forEach((o, i) => o.byDelta.forEach((b, k) => {
-    if (b.weakInstrument !== true || !b.firstStage) return;
+    if (!r.findings.instrument.weakAt.includes(b.delta) || !b.firstStage || typeof b.firstStage.F !== 'number' || b.firstStage.F >= MEMO_CONSTANTS.WEAK_F) return;
     weak.push([text(`${outcomeName(o).name} at delta `), num(r, `outcomes[${i}].byDelta[${k}].delta`, DELTA), text(': F = '), num(r, `outcomes[${i}].byDelta[${k}].firstStage.F`, F_STAT)]);
   }));
   if (!weak.length) return null;

@@ -1,5 +1,5 @@
-// Always (when an effect was estimated): the estimate is local to units near the formula's
-// edge, and is no forecast for units far from the limits or for large changes of the rule.
+// Always (when an effect was estimated): the estimate is about the units compared — near the
+// formula's edge, offered by the draw, or both (findings.design) — and is no forecast for units far from the limits or for large changes of the rule.
 // With the small-change projection (main/estimate/threshold-change.ts), the range of changes
 // the data support: a projection is supported only while every unit it would switch lies in the
 // boundary band of the headline delta.
@@ -43,13 +43,16 @@ export function localEstimateCaveat(r: Results, ctx: CaveatContext): Caveat | nu
   if (!estimable) return null;
   const { many } = unitWords(r);
   const k = ctx.headline;
+  const kind = r.findings.design.kind;
+  const who = kind === 'lottery' ? `${many} whose offer was left to the draw` : kind === 'edge and lottery' ? `${many} near the edge of the rule or whose offer was left to the draw` : `${many} near the edge of the rule`;
+  const far = kind === 'lottery' ? `${many} the rule always or never offers` : `${many} far from the limits`;
   const body = [
     para(
-      text(`The effect is measured for ${many} near the edge of the rule: at the headline delta, `),
+      text(`The effect is measured for ${who}: at the headline delta, `),
       stateRun(ctx.ledger.get(`design.byDelta[${k}].boundary`), `design.byDelta[${k}].boundary`),
       text(` of `),
       stateRun(ctx.ledger.get('study.rowsUsed'), 'study.rowsUsed'),
-      text(` ${many}. It says what ${effectOf(r)} does for them. It is not a forecast for ${many} far from the limits, whose circumstances differ, nor for a large change of the rule, which would reach such ${many}.`),
+      text(` ${many}. It says what ${effectOf(r)} does for them. It is not a forecast for ${far}, whose circumstances differ, nor for a large change of the rule, which would reach such ${many}.`),
     ),
   ];
   const tc = r.thresholdChanges;
@@ -91,7 +94,7 @@ export function localEstimateCaveat(r: Results, ctx: CaveatContext): Caveat | nu
       body.push(para(...items));
     }
   }
-  return { id: 'local-estimate', title: `The estimate is about ${many} near the edge`, tone: 'limitation', body };
+  return { id: 'local-estimate', title: `The estimate is about ${who}`, tone: 'limitation', body };
 }
 
 /** |relative change| as a percentage. */

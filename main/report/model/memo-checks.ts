@@ -8,6 +8,8 @@ import { balanceFigure, deltaFigure, densityFigure, distanceFigure } from './mem
 import { MEMO_CONSTANTS } from './memo-constants.ts';
 import { DELTA, F_STAT, PVALUE, STD_DIFF, criterionText, effectFormat, outcomeName, lowerFirst } from './memo-format.ts';
 import { constNum, num, numCell, numCellOr, text, textCell } from './memo-source.ts';
+import { deltaList } from './memo-deltas.ts';
+import { balanceVerdictRuns, manipulationVerdictRuns } from './memo-verdicts.ts';
 
 const verdict = (label: string, rest: Inline[]): Section['blocks'][number] => ({ kind: 'paragraph', runs: [text(`Verdict: ${label}. `, 'bold'), ...rest] });
 
@@ -40,21 +42,21 @@ function instrumentSection(ctx: MemoContext): Section | null {
     }
     rows.push({ cells });
   }));
-  const F = r.outcomes.flatMap((o) => o.byDelta.map((b) => b.firstStage?.F ?? null)).filter((f): f is number => f !== null);
-  const minF = F.length ? Math.min(...F) : null;
-  let label: string;
+  const f = r.findings.instrument;
   let rest: Inline[];
-  if (minF === null) { label = 'not available'; rest = [text('The first stage could not be estimated.')]; }
-  else if (minF >= MEMO_CONSTANTS.TF_FULL) {
-    label = 'strong';
-    rest = [text('At every delta the offer changes who receives the benefit by a wide margin: the first-stage F is above '), constNum('TF_FULL', MEMO_CONSTANTS.TF_FULL, F_STAT), text(', where the usual 95% interval is reliable (Lee and others, 2022).')];
-  } else if (minF >= MEMO_CONSTANTS.WEAK_F) {
-    label = 'adequate';
-    rest = [text('The first-stage F is above '), constNum('WEAK_F', MEMO_CONSTANTS.WEAK_F, { style: 'integer' }), text(' at every delta but not everywhere above '), constNum('TF_FULL', MEMO_CONSTANTS.TF_FULL, F_STAT), text('; the tF interval, which allows for this, is shown beside the usual one.')];
+  if (f.verdict === 'none') rest = [text('The first stage could not be estimated.')];
+  else if (f.verdict === 'strong') {
+    rest = [text('At every delta the offer changes who receives the benefit by a wide margin: the first-stage F is at least '), constNum('TF_FULL', MEMO_CONSTANTS.TF_FULL, F_STAT), text(', where the usual 95% interval is reliable (Lee and others, 2022).')];
+  } else if (f.verdict === 'adequate') {
+    rest = [text('The first-stage F is at least '), constNum('WEAK_F', MEMO_CONSTANTS.WEAK_F, { style: 'integer' }), text(' at every delta but below '), constNum('TF_FULL', MEMO_CONSTANTS.TF_FULL, F_STAT),
+      text(' at delta '), ...deltaList(ctx, f.belowFullAt), text('; there the tF interval, which allows for this, is the one to read beside the usual one.')];
   } else {
-    label = 'weak at some delta';
-    rest = [text('Somewhere the first-stage F is below '), constNum('WEAK_F', MEMO_CONSTANTS.WEAK_F, { style: 'integer' }), text(': read the tF interval and the Anderson–Rubin set there, not the usual interval.')];
+    rest = [text('The first-stage F is below '), constNum('WEAK_F', MEMO_CONSTANTS.WEAK_F, { style: 'integer' }), text(' at delta '), ...deltaList(ctx, f.weakAt),
+      text(': there read the tF interval and the Anderson–Rubin set, not the usual interval.')];
+    const alsoBelow = f.belowFullAt.filter((d) => !f.weakAt.includes(d));
+    if (alsoBelow.length) rest.push(text(' At delta '), ...deltaList(ctx, alsoBelow), text(' it is below '), constNum('TF_FULL', MEMO_CONSTANTS.TF_FULL, F_STAT), text(', so the tF interval is the one to read there too.'));
   }
+  const label = f.verdict;
   const blocks: Section['blocks'] = [
     { kind: 'paragraph', runs: [text(`The method needs the offer to change who receives the benefit near the edge. The first stage measures by how much (the share of ${ctx.words.many} receiving it rises by this much with an offer); the F statistic says whether that is strong enough to rely on.`)] },
     verdict(label, rest),
@@ -87,12 +89,9 @@ function balanceSection(ctx: MemoContext): Section | null {
   if (!r.balance.length) {
     return { id: 'check-balance', heading: 'Balance', blocks: [{ kind: 'paragraph', runs: [text('The study names no characteristics fixed before the offer (covariates), so balance could not be checked.')] }] };
   }
-  const bad = r.balanceJoint.map((j, k) => ({ j, k })).filter(({ j }) => j.p !== null && j.p < MEMO_CONSTANTS.ALPHA);
   const blocks: Section['blocks'] = [
-    { kind: 'paragraph', runs: [text(`Near the edge, once the offer probability is controlled for, offered and not-offered ${ctx.words.many} should not differ in characteristics fixed before the offer. A joint test asks whether all the differences together are more than chance.`)] },
-    verdict(bad.length ? 'imbalance found' : 'no sign of imbalance', bad.length
-      ? [text('The joint test is below '), constNum('ALPHA', MEMO_CONSTANTS.ALPHA, { style: 'decimal', decimals: 2 }), text(' at some delta (see the table and “Limits and caveats”).')]
-      : [text('At every delta the joint test is above '), constNum('ALPHA', MEMO_CONSTANTS.ALPHA, { style: 'decimal', decimals: 2 }), text(': the differences are within what chance explains.')]),
+    { kind: 'paragraph', runs: [text(`Among the ${ctx.words.many} compared, once the offer probability is controlled for, offered and not-offered ${ctx.words.many} should not differ in characteristics fixed before the offer. Each characteristic is tested at each delta, and a joint test asks whether all the differences together are more than chance; with many tests, one small p-value is expected by chance, so the p-values are adjusted for their number.`)] },
+    verdict(r.findings.balance.verdict, balanceVerdictRuns(r)),
     {
       kind: 'table',
       id: 'balance',
@@ -136,12 +135,9 @@ function manipulationSection(ctx: MemoContext): Section {
   if (!r.density.length) {
     return { id: 'check-density', heading: 'Sorting at the limits', blocks: [{ kind: 'paragraph', runs: [text('The rule has no limit on a continuous input, so there is no density to check.')] }] };
   }
-  const jumps = r.density.filter((d) => d.p !== null && d.p < MEMO_CONSTANTS.ALPHA);
   const blocks: Section['blocks'] = [
     { kind: 'paragraph', runs: [text(`If ${ctx.words.many} or staff adjusted reported values to meet a limit, there would be more ${ctx.words.many} just on the eligible side than just on the other. The density test (McCrary 2008) compares the two.`)] },
-    verdict(jumps.length ? 'a jump at some limit' : 'no sign of sorting', jumps.length
-      ? [text('The number of units changes abruptly at a limit (p below '), constNum('ALPHA', MEMO_CONSTANTS.ALPHA, { style: 'decimal', decimals: 2 }), text('); see “Limits and caveats”.')]
-      : [text('At every limit the test is above '), constNum('ALPHA', MEMO_CONSTANTS.ALPHA, { style: 'decimal', decimals: 2 }), text('.')]),
+    verdict(r.findings.manipulation.verdict, manipulationVerdictRuns(r)),
     {
       kind: 'table',
       id: 'density',
@@ -156,7 +152,7 @@ function manipulationSection(ctx: MemoContext): Section {
       rows: r.density.map((d, k): TableRow => ({ cells: [
         textCell(criterionText(r, d.atom, ctx.words.one)),
         numCellOr(r, `density[${k}].logDifference`, 'not estimable'), numCellOr(r, `density[${k}].p`, ''),
-        textCell(d.p === null ? 'not tested' : d.p < MEMO_CONSTANTS.ALPHA ? 'jump' : 'no jump'),
+        textCell(r.findings.manipulation.limits[k]?.verdict ?? 'did not run'),
       ] })),
     },
   ];
@@ -166,13 +162,27 @@ function manipulationSection(ctx: MemoContext): Section {
 
 function sensitivitySection(ctx: MemoContext): Section {
   const { r } = ctx;
-  const flagged = r.outcomes.filter((o) => o.sensitivity.flagged.length);
   const blocks: Section['blocks'] = [
-    { kind: 'paragraph', runs: [text('The estimate should not depend much on how near the edge counts as near. The figures show the estimate at every delta.')] },
-    verdict(flagged.length ? 'the estimate depends on delta' : 'stable across deltas', flagged.length
-      ? [text('For ' + flagged.map((o) => lowerFirst(outcomeName(o).name)).join(', ') + ', the 95% intervals at two deltas do not overlap; see “Limits and caveats”.')]
-      : [text('At every pair of deltas the 95% intervals overlap.')]),
+    { kind: 'paragraph', runs: [text('The estimate should not depend much on how near the edge counts as near. The figures show the estimate at every delta. The comparison is descriptive: the smaller samples are part of the larger ones, so the estimates are correlated and no test of their difference is made (whether 95% intervals overlap would prove little; Schenker and Gentleman 2001).')] },
   ];
+  const items: Inline[][] = [];
+  r.findings.sensitivity.forEach((f, i) => {
+    const o = r.outcomes[i]!;
+    const name = lowerFirst(outcomeName(o).name);
+    const known = o.byDelta.map((b, j) => ({ b, j })).filter(({ b }) => b.estimable && b.estimate !== null);
+    if (!f.range || known.length < 2) { items.push([text(`For ${name}, fewer than two deltas have an estimate.`)]); return; }
+    const fmt = effectFormat(o, ctx.headline);
+    const lo = known.reduce((a, x) => (x.b.estimate! < a.b.estimate! ? x : a));
+    const hi = known.reduce((a, x) => (x.b.estimate! > a.b.estimate! ? x : a));
+    const it: Inline[] = [text(`For ${name} the estimates run from `), num(r, `outcomes[${i}].byDelta[${lo.j}].estimate`, { ...fmt, signed: true }), text(' (delta '), ...deltaList(ctx, [lo.b.delta]),
+      text(') to '), num(r, `outcomes[${i}].byDelta[${hi.j}].estimate`, { ...fmt, signed: true }), text(' (delta '), ...deltaList(ctx, [hi.b.delta]), text(')')];
+    it.push(text(f.signChanges ? '; their sign changes with delta.' : '; they have the same sign at every delta.'));
+    if (f.outside.length) {
+      it.push(text(' The estimate at delta '), ...deltaList(ctx, [...new Set(f.outside.map((x) => x.delta))]), text(' lies outside the 95% interval at another delta (see “Limits and caveats”).'));
+    }
+    items.push(it);
+  });
+  blocks.push(verdict('shown descriptively', []), { kind: 'list', items });
   r.outcomes.forEach((_, i) => { const f = deltaFigure(ctx, i); if (f) blocks.push(f); });
   return { id: 'check-delta', heading: 'Sensitivity to delta', blocks };
 }

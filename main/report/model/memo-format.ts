@@ -2,6 +2,7 @@
 
 import type { OutcomeResults, Results } from '../../contract/results.ts';
 import type { NumberFormat } from './document.ts';
+import { headlineDeltaIndex } from '../../estimate/headline.ts';
 
 export const COUNT: NumberFormat = { style: 'integer' };
 export const PERCENT: NumberFormat = { style: 'percent', decimals: 1 };
@@ -10,14 +11,10 @@ export const F_STAT: NumberFormat = { style: 'decimal', decimals: 1 };
 export const STD_DIFF: NumberFormat = { style: 'decimal', decimals: 2, signed: true };
 export const DELTA: NumberFormat = { style: 'decimal', decimals: 2 };
 
-/** The index of the headline delta: the one the threshold-change projection uses, else the middle one. */
+/** The index of the headline delta, as the findings state it (results.headline); results saved
+ * before format 1.1 (a map cache, say) fall back to the one definition in main/estimate/headline.ts. */
 export function headlineIndex(r: Results): number {
-  const tc = r.thresholdChanges;
-  if (tc) {
-    const i = r.settings.deltas.indexOf(tc.delta);
-    if (i >= 0) return i;
-  }
-  return Math.floor(r.settings.deltas.length / 2);
+  return (r.headline as Results['headline'] | undefined)?.index ?? headlineDeltaIndex(r.settings.deltas);
 }
 
 /** "Utility arrears in March (USD)" → { name: "Utility arrears in March", unit: "USD" }. */

@@ -63,7 +63,7 @@ function outcomeSection(ctx: MemoContext, i: number): Section {
       num(r, `outcomes[${i}].ivNoControl.estimate`, { ...signed, ...(name.unit ? { unit: name.unit } : {}) }), text('. '));
   }
   if (cmp.length && head && head.estimate !== null) {
-    cmp.push(text(`The headline estimate near the edge is `), num(r, `outcomes[${i}].byDelta[${k}].estimate`, { ...signed, ...(name.unit ? { unit: name.unit } : {}) }),
+    cmp.push(text(`The headline estimate${r.findings.design.kind === 'edge' ? ' near the edge' : ''} is `), num(r, `outcomes[${i}].byDelta[${k}].estimate`, { ...signed, ...(name.unit ? { unit: name.unit } : {}) }),
       text(`. The wider comparisons mix the effect of the benefit with differences between the ${many} who get it and those who do not (selection: who is eligible and who takes it up is not random), which is why they differ from the estimate near the edge.`));
   }
   if (cmp.length) blocks.push({ kind: 'paragraph', runs: cmp });
@@ -73,11 +73,28 @@ function outcomeSection(ctx: MemoContext, i: number): Section {
       text('Cross-check with one running variable (local-linear regression, Imbens and Kalyanaraman bandwidth): '),
       num(r, `outcomes[${i}].localLinear.estimate`, { ...signed, ...(name.unit ? { unit: name.unit } : {}) }),
       text(' (95% interval '), num(r, `outcomes[${i}].localLinear.ci[0]`, fmt), text(' to '), num(r, `outcomes[${i}].localLinear.ci[1]`, fmt), text(').'),
+      ...localLinearReach(ctx, i),
     ] });
   }
   const fig = distanceFigure(ctx, i);
   if (fig) blocks.push(fig);
   return { id: `results-${i}`, heading: upperFirst(name.name), blocks };
+}
+
+/** The cross-check's bandwidth and how many units it used; close to a global fit when it takes in most of them. */
+function localLinearReach(ctx: MemoContext, i: number): Inline[] {
+  const { r } = ctx;
+  const j = r.findings.localLinear.findIndex((f) => f.column === r.outcomes[i]!.column);
+  const f = r.findings.localLinear[j];
+  if (!f) return [];
+  const base = `findings.localLinear[${j}]`;
+  // The count is in no printed relation; hidden like any small count (suppress.ts) when it is one of 1 … smallCellMax.
+  const shown = !(f.units >= 1 && f.units <= ctx.ledger.threshold);
+  const runs: Inline[] = [text(' Its bandwidth is '), num(r, `outcomes[${i}].localLinear.bandwidth`, { style: 'decimal', decimals: 3 }), text(' on the running variable’s own scale; it used ')];
+  if (shown) runs.push(num(r, `${base}.units`, COUNT), text(` ${ctx.words.many} (`), num(r, `${base}.share`, { style: 'percent', decimals: 0 }), text(` of those with this outcome).`));
+  else runs.push(text(`few ${ctx.words.many}.`));
+  if (f.nearGlobal) runs.push(text(' That is most of the data, so the check is close to a global fit, not a comparison near the limit.'));
+  return runs;
 }
 
 export function resultsSection(ctx: MemoContext): Section {

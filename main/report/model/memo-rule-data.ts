@@ -14,7 +14,11 @@ export function ruleSection(ctx: MemoContext): Section {
   const p = r.program;
   const blocks: Section['blocks'] = [
     { kind: 'paragraph', runs: [text(`${p.name}. `, 'bold'), text(p.wording)] },
-    { kind: 'paragraph', runs: [text('The rule is made of these criteria; the analysis looks at ' + ctx.words.many + ' near the point where one of them changes the verdict:')] },
+    { kind: 'paragraph', runs: [text(r.findings.design.kind === 'lottery'
+      ? 'The rule is made of these criteria; the analysis compares ' + ctx.words.many + ' whose offer was left to the draw, not ' + ctx.words.many + ' near a limit:'
+      : r.findings.design.kind === 'edge and lottery'
+        ? 'The rule is made of these criteria; the analysis looks at ' + ctx.words.many + ' near the point where one of them changes the verdict, and at ' + ctx.words.many + ' whose offer was left to the draw:'
+        : 'The rule is made of these criteria; the analysis looks at ' + ctx.words.many + ' near the point where one of them changes the verdict:')] },
     { kind: 'list', items: p.criteria.map((c) => [text(upperFirst(c.description.replace(/^its /, `the ${ctx.words.one}'s `)))]) },
   ];
   const offer: Inline[] = [text(p.offerWording + ' ')];

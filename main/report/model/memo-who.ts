@@ -1,8 +1,9 @@
 // Section 4: who the estimate is about. Units near the edge per delta, which criterion they sit
-// near (composition), and how they and the compliers differ from all units (complier profile,
-// Abadie 2003) — the basis of the caveats on extrapolation.
+// near (composition), and how they and the compliers differ from all units (complier profile:
+// the 2SLS of W·D on D, Angrist and Pischke 2009 §4.4.4; Abadie 2003's κ only where the offer
+// probabilities are known) — the basis of the caveats on extrapolation.
 
-import type { Cell, Section, TableRow } from './document.ts';
+import type { Cell, Inline, Section, TableRow } from './document.ts';
 import type { MemoContext } from './memo-context.ts';
 import { boundaryMapFigure } from './memo-charts.ts';
 import { COUNT, DELTA, PERCENT, criterionText, upperFirst } from './memo-format.ts';
@@ -12,12 +13,26 @@ const MEAN = { style: 'decimal', decimals: 2 } as const;
 
 const criterion = (ctx: MemoContext, atom: number) => criterionText(ctx.r, atom, ctx.words.one);
 
+/** What the composition means for whom the estimate speaks, from the design the findings state. */
+function designWords(ctx: MemoContext): Inline[] {
+  const { many } = ctx.words;
+  const d = ctx.r.findings.design;
+  if (d.kind === 'edge') return [text(`The estimate therefore speaks mostly for ${many} near that limit.`)];
+  const k = ctx.headline;
+  const share = ctx.ledger.share(d.lotteryShare, `design.composition[${k}].lotteryOnly`, `design.byDelta[${k}].boundary`);
+  if (d.kind === 'lottery') return [text(`But every one of them is there because the offer was left to the draw, not because a limit is near: the estimate speaks for ${many} whose offer was drawn, wherever their inputs lie within the rule.`)];
+  return [text('But '), stateRun(share, 'findings.design.lotteryShare', PERCENT),
+    text(` of the ${many} compared are there because the offer was left to the draw, far from any limit: the estimate speaks mostly for ${many} whose offer was drawn, and for those near a limit only in part.`)];
+}
+
 export function whoSection(ctx: MemoContext): Section {
   const { r, ledger, headline: k } = ctx;
   const { one, many } = ctx.words;
   const blocks: Section['blocks'] = [{
     kind: 'paragraph',
-    runs: [text(`Only ${many} near the edge of the rule tell us about the effect: those whose inputs are so close to a limit that a small difference would change the verdict. How close counts as near is set by delta, the radius of a small neighbourhood around each ${one}’s inputs (measured in scaled units, see the appendix); the analysis is repeated for several deltas. The headline delta is `), num(r, `settings.deltas[${k}]`, DELTA), text('.')],
+    runs: [text(`${r.findings.design.kind === 'edge' || r.findings.design.kind === 'none'
+      ? `Only ${many} near the edge of the rule tell us about the effect: those whose inputs are so close to a limit that a small difference would change the verdict.`
+      : `Only ${many} whose offer could have gone either way tell us about the effect: those whose offer was left to the draw, and those whose inputs are so close to a limit that a small difference would change the verdict.`} How close counts as near is set by delta, the radius of a small neighbourhood around each ${one}’s inputs (measured in scaled units, see the appendix); the analysis is repeated for several deltas. The headline delta is `), num(r, 'headline.delta', DELTA), text(`, ${r.headline.why}.`)],
   }];
   blocks.push({
     kind: 'table',
@@ -59,7 +74,7 @@ export function whoSection(ctx: MemoContext): Section {
       blocks.push({ kind: 'paragraph', runs: [
         text(`At the headline delta, the criterion with the most ${many} near it is “${criterion(ctx, top.a.atom)}”: `),
         stateRun(ledger.share(top.a.share, `${base}.straddling`, `design.byDelta[${k}].boundary`), `${base}.share`, PERCENT),
-        text(` of the ${many} near the edge. The estimate therefore speaks mostly for ${many} near that limit.`),
+        text(` of the ${many} near the edge. `), ...designWords(ctx),
       ] });
     }
     blocks.push({
@@ -98,7 +113,7 @@ export function whoSection(ctx: MemoContext): Section {
     });
     const share = profile.complierShare;
     blocks.push({ kind: 'paragraph', runs: share !== null && nearShown
-      ? [text(`Among the ${many} near the edge, an estimated `), num(r, `compliers[${prof}].complierShare.coef`, PERCENT),
+      ? [text(`Among the ${many} ${r.findings.design.kind === 'edge' ? 'near the edge' : 'compared'}, an estimated `), num(r, `compliers[${prof}].complierShare.coef`, PERCENT),
         text(` take the benefit when offered and would not take it otherwise (the compliers, for whom the effect is measured). The table compares them with all ${many} and with everyone near the edge: where they differ, the effect for other ${many} may differ too.`)]
       : [text(`The table compares the ${many} near the edge and the compliers with all ${many}: where they differ, the effect for other ${many} may differ too.`)],
     });
@@ -114,7 +129,9 @@ export function whoSection(ctx: MemoContext): Section {
         { header: 'Compliers', align: 'right', format: MEAN },
       ],
       rows,
-      notes: [[text('Complier averages are weighted as in Abadie (2003); for a yes/no characteristic the average is the share with it.')]],
+      notes: [[text(r.compliers[prof]?.method === 'kappa'
+        ? 'Complier averages are weighted by the known offer probabilities of the draw (Abadie 2003); for a yes/no characteristic the average is the share with it.'
+        : 'Complier averages use the same comparison and weighting as the effect estimate (a two-stage least squares regression; Angrist and Pischke 2009, §4.4.4); for a yes/no characteristic the average is the share with it.')]],
     });
   }
   return { id: 'who', heading: 'Who the estimate is about', blocks };
