@@ -14,6 +14,7 @@ import { listFolder, openDialog, previewMemo, saveDialog } from './api/files.ts'
 import type { HostContext } from './api/host.ts';
 import { WORKER_METHODS } from './api/worker-runner.ts';
 import { checkProgram, tryUnit } from './api/program.ts';
+import { loadSession, saveSession } from './api/session.ts';
 import { listSamples, openStudy, saveStudy } from './api/studies.ts';
 import { exportRunMemo, fingerprintStudy, recentWork, recordedRun, workspaceInfo } from './api/workspace.ts';
 
@@ -68,6 +69,8 @@ const METHODS: { [M in ApiMethod]: { args: Shape; run: Handler<M> } } = {
   },
   'figure.edge': { args: { object: { runId: 'integer' } }, run: edgeFiguresOfRun },
   'study.fingerprint': { args: { object: { study: 'unknown', baseDir: path }, optional: ['baseDir'] }, run: fingerprintStudy },
+  'session.save': { args: { object: { state: 'unknown' } }, run: saveSession },
+  'session.load': { args: NO_ARGS, run: loadSession },
   'run.exportMemo': { args: { object: { runId: 'integer', outDir: path, formats } }, run: exportRunMemo },
 };
 

@@ -62,7 +62,7 @@ export const API_METHODS: readonly ApiMethod[] = [
   'study.check', 'study.evaluate', 'demo.run',
   'program.check', 'program.tryUnit', 'study.open', 'study.save', 'samples.list', 'data.preview', 'data.check',
   'workspace.info', 'workspace.recent', 'workspace.run', 'files.list', 'dialog.openFile', 'dialog.saveFile', 'memo.preview',
-  'figure.map', 'figure.edge', 'study.fingerprint', 'run.exportMemo',
+  'figure.map', 'figure.edge', 'study.fingerprint', 'run.exportMemo', 'session.save', 'session.load',
 ];
 
 // ---- The desktop app's methods (issue 6) ------------------------------------------------------
@@ -218,6 +218,11 @@ export interface StudyFingerprintArgs { study: unknown; baseDir?: string }
 /** The content hash of a study being edited (null while it is not a valid study). */
 export interface StudyFingerprint { sha256: string | null }
 
+export interface SessionSaveArgs { state: unknown }
+export interface SessionSaved { savedAt: string }
+/** The app's state as last saved in this workspace (null: none), handed back as it was given. */
+export interface SessionLoaded { state: unknown; savedAt: string | null }
+
 export interface EdgeFiguresArgs { runId: number }
 /** Take-up and outcomes against the distance to the rule's edge, and the density around each limit, of a stored run (binned; small cells hidden). */
 export interface EdgeFigures { figures: Array<{ id: string; spec: ChartSpec; caption: string; alt: string }> }
@@ -288,6 +293,8 @@ export interface AppApiMethods {
   'figure.edge': { args: EdgeFiguresArgs; result: EdgeFigures };
   'study.fingerprint': { args: StudyFingerprintArgs; result: StudyFingerprint };
   'run.exportMemo': { args: RunExportMemoArgs; result: RunExportedMemo };
+  'session.save': { args: SessionSaveArgs; result: SessionSaved };
+  'session.load': { args: Record<string, never>; result: SessionLoaded };
 }
 
 // Files the user hands over (project rule: the renderer never names an arbitrary path). In browser

@@ -72,3 +72,19 @@ describe('a stored run', () => {
     expect(strip(again)).toBe(strip(original));
   });
 });
+
+describe('the app session kept in the workspace', () => {
+  it('hands back what was saved, as it was; none before; a fresh folder has none', async () => {
+    const dir = mkdtempSync(join(tmpdir(), 'fenceline-session-'));
+    expect(value(await callApi('session.load', {}, { workspaceDir: dir }))).toEqual({ state: null, savedAt: null });
+    const state = { step: 'rule', draft: { title: 'Edited, not saved', program: { rule: { all: [] } } }, runId: 3 };
+    value(await callApi('session.save', { state }, { workspaceDir: dir }));
+    const back = value<{ state: unknown; savedAt: string }>(await callApi('session.load', {}, { workspaceDir: dir }));
+    expect(back.state).toEqual(state);
+    expect(back.savedAt).toMatch(/^\d{4}-\d\d-\d\dT/);
+  });
+  it('refuses a state too large to keep, in plain words', async () => {
+    const r = await callApi('session.save', { state: { blob: 'x'.repeat(6 * 2 ** 20) } }, { workspaceDir: mkdtempSync(join(tmpdir(), 'fenceline-session-')) });
+    expect(r.ok ? '' : r.error.problems[0]!.message).toMatch(/too large to keep/);
+  });
+});
