@@ -131,7 +131,7 @@ export function whoSection(ctx: MemoContext): Section {
       rows,
       notes: [[text(r.compliers[prof]?.method === 'kappa'
         ? 'Complier averages are weighted by the known offer probabilities of the draw (Abadie 2003); for a yes/no characteristic the average is the share with it.'
-        : 'Complier averages use the same comparison and weighting as the effect estimate (a two-stage least squares regression; Angrist and Pischke 2009, §4.4.4); for a yes/no characteristic the average is the share with it.')]],
+        : 'Complier averages use the same comparison and weighting as the effect estimate (a two-stage least squares regression; Angrist and Pischke 2009); for a yes/no characteristic the average is the share with it.')]],
     });
   }
   return { id: 'who', heading: 'Who the estimate is about', blocks };
