@@ -19,7 +19,7 @@ export function cosPowerIntegral(n: number, U: number): number {
 }
 
 /** Simpson on [lo, hi] after v = lo + w² on the left half and v = hi − w² on the right half. */
-function simpsonSmoothEnds(f: (v: number) => number, lo: number, hi: number, m = 4000): number {
+export function simpsonSmoothEnds(f: (v: number) => number, lo: number, hi: number, m = 4000): number {
   if (!(hi > lo)) return 0;
   const mid = (lo + hi) / 2;
   const h = Math.sqrt(mid - lo);
