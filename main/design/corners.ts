@@ -21,8 +21,8 @@
 // sector and radial piece the rule is evaluated once at an interior point. What remains is, per
 // line at distance t from the centre and angle φ to its normal (crossing at r = t/cos φ),
 //     L = ∫ (1 − t² sec² φ)^β dφ,
-// closed form for d = 2 (β = 1: Δφ − t²·Δtan φ, the elementary circle–polygon area) and otherwise
-// computed after the substitution t·tan φ = √(1 − t²)·sin ψ, which turns it into
+// closed form for d = 2 (β = 1: Δφ − t²·Δtan φ, the elementary circle–polygon area) and for even
+// d (a finite series in tan φ), and for odd d ≥ 3 computed after the substitution t·tan φ = √(1 − t²)·sin ψ, which turns it into
 //     ∫ t·s·cos ψ·(1 − e)^β / e dψ,   s = √(1 − t²), e = t² + s² sin² ψ;
 // the pole part t·s·cos ψ / e integrates to φ itself, and the remainder is analytic in ψ (no
 // endpoint singularity, no peak), integrated by adaptive Gauss–Legendre to 1e-13.
@@ -37,7 +37,7 @@
 
 import { holds } from '../rules/atoms.ts';
 import type { Comparator } from '../rules/types.ts';
-import { integrate, type Integral } from './quadrature.ts';
+import { integrate, integrateSmooth, type Integral } from './quadrature.ts';
 
 /** One crossing criterion: holds where `op` holds for m + δ⟨w, z⟩, z in the unit d-ball. */
 export interface LinearCut {
@@ -55,7 +55,7 @@ export interface CornerResult extends Integral {
 const RANK_TOL = 1e-10;
 /** Absolute tolerance of the inner (per line) integrals and of the outer slice integral. */
 const LINE_TOL = 1e-13;
-const SLICE_TOL = 1e-10;
+const SLICE_TOL = 1e-9;
 const TWO_PI = 2 * Math.PI;
 
 /**
@@ -90,7 +90,9 @@ export function cornerProbability(cuts: LinearCut[], delta: number, d: number, v
     return verdict[mask] === 1;
   };
   if (k === 2) {
-    const lines = a.map((ai, i) => line2(ai[0]!, ai[1]!, t[i]!));
+    const lines = lines2(cuts.length);
+    a.forEach((ai, i) => { lines.ax[i] = ai[0]!; lines.ay[i] = ai[1]!; lines.t[i] = t[i]!; });
+    lines.n = cuts.length;
     const y = new Float64Array(2);
     const r = diskProbability(lines, d / 2, (y1, y2) => { y[0] = y1; y[1] = y2; return offered(y); });
     return { value: clamp01(r.value), error: r.error, rank: 2 };
@@ -128,99 +130,127 @@ export function orthonormalBasis(vectors: Array<ArrayLike<number>>, d: number): 
   return basis;
 }
 
-/** A line ⟨(ax, ay), y⟩ = t of the plane, with a unit normal. */
-interface Line2 { ax: number; ay: number; t: number }
+/**
+ * Lines ⟨(ax[i], ay[i]), y⟩ = t[i] of the plane with unit normals, i < n (flat arrays, so the
+ * slices of the 3-ball reuse one set). The side that holds is decided by `offered` at points, so
+ * the sign of a normal does not matter.
+ */
+export interface Lines2 { n: number; ax: Float64Array; ay: Float64Array; t: Float64Array }
 
-/** The same line with its normal turned so that t ≥ 0 (the side that holds is decided by points, not by this). */
-function line2(ax: number, ay: number, t: number): Line2 {
-  return t < 0 ? { ax: -ax, ay: -ay, t: -t } : { ax, ay, t };
+export function lines2(capacity: number): Lines2 {
+  return { n: 0, ax: new Float64Array(capacity), ay: new Float64Array(capacity), t: new Float64Array(capacity) };
+}
+
+/** Scratch space of diskProbability, grown on demand (one per thread: no call re-enters it). */
+let cap = 0;
+let lx = new Float64Array(0), ly = new Float64Array(0), lt = new Float64Array(0), theta = new Float64Array(0);
+let rho = new Float64Array(0), breaks = new Float64Array(0);
+let order = new Int32Array(0), coef = new Int8Array(0), runCoef = new Int8Array(0);
+let runFrom = new Float64Array(0), runTo = new Float64Array(0);
+
+function ensureScratch(m: number): void {
+  if (m <= cap) return;
+  cap = Math.max(m, 2 * cap, 8);
+  lx = new Float64Array(cap); ly = new Float64Array(cap); lt = new Float64Array(cap); theta = new Float64Array(cap);
+  rho = new Float64Array(cap); order = new Int32Array(cap); coef = new Int8Array(cap); runCoef = new Int8Array(cap);
+  runFrom = new Float64Array(cap); runTo = new Float64Array(cap);
+  breaks = new Float64Array(2 * cap + (cap * (cap - 1)) / 2);
 }
 
 /**
  * P(offered) for y on the unit disk with density (β/π)(1 − |y|²)^(β−1); `offered(y1, y2)` is the
  * rule's verdict at a point, constant between the lines.
  */
-export function diskProbability(lines: Line2[], beta: number, offered: (y1: number, y2: number) => boolean): Integral {
-  const cross = lines.filter((l) => l.t < 1);
-  if (cross.length === 0) return { value: offered(0, 0) ? 1 : 0, error: 0 };
-  const m = cross.length;
-  const theta = cross.map((l) => Math.atan2(l.ay, l.ax));
-  const breaks: number[] = [];
-  cross.forEach((l, i) => {
-    const om = Math.acos(l.t);
-    breaks.push(theta[i]! - om, theta[i]! + om);
-  });
+export function diskProbability(lines: Lines2, beta: number, offered: (y1: number, y2: number) => boolean): Integral {
+  ensureScratch(lines.n);
+  // the lines that cross the open disk, turned so that t ≥ 0
+  let m = 0;
+  for (let i = 0; i < lines.n; i++) {
+    const t = lines.t[i]!;
+    if (!(Math.abs(t) < 1)) continue;
+    const f = t < 0 ? -1 : 1;
+    lx[m] = f * lines.ax[i]!; ly[m] = f * lines.ay[i]!; lt[m] = f * t;
+    m++;
+  }
+  if (m === 0) return { value: offered(0, 0) ? 1 : 0, error: 0 };
+  let nb = 0;
+  for (let i = 0; i < m; i++) {
+    theta[i] = Math.atan2(ly[i]!, lx[i]!);
+    const om = Math.acos(lt[i]!);
+    breaks[nb++] = wrap2Pi(theta[i]! - om);
+    breaks[nb++] = wrap2Pi(theta[i]! + om);
+  }
   for (let i = 0; i < m; i++) {
     for (let j = i + 1; j < m; j++) {
-      const p = cross[i]!, q = cross[j]!;
-      const det = p.ax * q.ay - p.ay * q.ax;
+      const det = lx[i]! * ly[j]! - ly[i]! * lx[j]!;
       if (Math.abs(det) < 1e-15) continue;
-      const x = (p.t * q.ay - p.ay * q.t) / det;
-      const y = (p.ax * q.t - p.t * q.ax) / det;
-      if (x * x + y * y < 1) breaks.push(Math.atan2(y, x));
+      const x = (lt[i]! * ly[j]! - ly[i]! * lt[j]!) / det;
+      const y = (lx[i]! * lt[j]! - lt[i]! * lx[j]!) / det;
+      if (x * x + y * y < 1) breaks[nb++] = wrap2Pi(Math.atan2(y, x));
     }
   }
-  const sorted = breaks.map((b) => ((b % TWO_PI) + TWO_PI) % TWO_PI).sort((x, y) => x - y);
-  const cuts: number[] = [];
-  for (const b of sorted) if (cuts.length === 0 || b - cuts[cuts.length - 1]! > 1e-15) cuts.push(b);
+  const cuts = breaks.subarray(0, nb).sort();
 
   let origin = 0; // Σ coefficient × Δθ of the centre's term, (1 − 0)^β = 1
   let lineTerms = 0;
   let error = 0;
-  // per line: the run of consecutive sectors with the same coefficient, integrated at once
-  const runCoef = new Int8Array(m);
-  const runFrom = new Float64Array(m);
-  const runTo = new Float64Array(m);
-  const flush = (i: number) => {
-    if (runCoef[i] !== 0) {
-      const r = lineIntegral(cross[i]!.t, runFrom[i]!, runTo[i]!, beta);
-      lineTerms += runCoef[i]! * r.value;
-      error += r.error;
-    }
-    runCoef[i] = 0;
-  };
-  const rho = new Float64Array(m);
-  const order: number[] = [];
-  const coef = new Int8Array(m);
-  for (let c = 0; c < cuts.length; c++) {
+  runCoef.fill(0, 0, m);
+  for (let c = 0; c < nb; c++) {
     const lo = cuts[c]!;
-    const hi = c + 1 < cuts.length ? cuts[c + 1]! : cuts[0]! + TWO_PI;
+    const hi = c + 1 < nb ? cuts[c + 1]! : cuts[0]! + TWO_PI;
     const width = hi - lo;
-    if (!(width > 0)) continue;
+    if (!(width > 1e-15)) continue;
     const mid = (lo + hi) / 2;
     const ex = Math.cos(mid), ey = Math.sin(mid);
-    order.length = 0;
+    // crossings along the ray at angle `mid`, in order of distance (insertion sort: few lines)
+    let no = 0;
     for (let i = 0; i < m; i++) {
-      const l = cross[i]!;
-      const cphi = l.ax * ex + l.ay * ey;
-      if (cphi > 0 && l.t < cphi) { rho[i] = l.t / cphi; order.push(i); }
+      coef[i] = 0;
+      const cphi = lx[i]! * ex + ly[i]! * ey;
+      if (!(cphi > 0 && lt[i]! < cphi)) continue;
+      const r = lt[i]! / cphi;
+      rho[i] = r;
+      let q = no++;
+      while (q > 0 && rho[order[q - 1]!]! > r) { order[q] = order[q - 1]!; q--; }
+      order[q] = i;
     }
-    order.sort((i, j) => rho[i]! - rho[j]!);
-    coef.fill(0);
     let coefOrigin = 0;
     // radial pieces: centre → crossings in order → circle; H = (1 − r²)^β is 1 at the centre, 0 on the circle
-    for (let p = 0; p <= order.length; p++) {
+    for (let p = 0; p <= no; p++) {
       const r0 = p === 0 ? 0 : rho[order[p - 1]!]!;
-      const r1 = p === order.length ? 1 : rho[order[p]!]!;
+      const r1 = p === no ? 1 : rho[order[p]!]!;
       if (!(r1 > r0)) continue;
       const rm = (r0 + r1) / 2;
       if (!offered(rm * ex, rm * ey)) continue;
       if (p === 0) coefOrigin++; else coef[order[p - 1]!]!++;
-      if (p < order.length) coef[order[p]!]!--;
+      if (p < no) coef[order[p]!]!--;
     }
     origin += coefOrigin * width;
+    // per line, consecutive sectors with the same coefficient are integrated at once
     for (let i = 0; i < m; i++) {
       const ci = coef[i]!;
       const phi0 = wrapPi(lo - theta[i]!);
       if (ci !== 0 && runCoef[i] === ci && Math.abs(phi0 - runTo[i]!) < 1e-12) { runTo[i] = phi0 + width; continue; }
-      flush(i);
-      if (ci !== 0) { runCoef[i] = ci; runFrom[i] = phi0; runTo[i] = phi0 + width; }
+      if (runCoef[i] !== 0) {
+        const r = lineIntegral(lt[i]!, runFrom[i]!, runTo[i]!, beta);
+        lineTerms += runCoef[i]! * r.value;
+        error += r.error;
+      }
+      runCoef[i] = ci;
+      runFrom[i] = phi0;
+      runTo[i] = phi0 + width;
     }
   }
-  for (let i = 0; i < m; i++) flush(i);
+  for (let i = 0; i < m; i++) {
+    if (runCoef[i] === 0) continue;
+    const r = lineIntegral(lt[i]!, runFrom[i]!, runTo[i]!, beta);
+    lineTerms += runCoef[i]! * r.value;
+    error += r.error;
+  }
   return { value: (origin + lineTerms) / TWO_PI, error: error / TWO_PI };
 }
 
+const wrap2Pi = (x: number) => { const v = x % TWO_PI; return v < 0 ? v + TWO_PI : v; };
 const wrapPi = (x: number) => x - TWO_PI * Math.round(x / TWO_PI);
 
 /**
@@ -233,6 +263,7 @@ export function lineIntegral(t: number, phi0: number, phi1: number, beta: number
   const b = Math.min(om, phi1);
   if (!(b > a)) return { value: 0, error: 0 };
   if (beta === 1) return { value: b - a - t * t * (Math.tan(b) - Math.tan(a)), error: 0 };
+  if (Number.isInteger(beta) && beta <= 10) return { value: secPowerSeries(t, b, beta) - secPowerSeries(t, a, beta), error: 0 };
   // With e = t² + s² sin²ψ = 1 − s² cos²ψ the integrand is t·s·cos ψ·(1 − e)^β / e; its pole part
   // t·s·cos ψ / e integrates to atan(s·sin ψ / t) = φ, leaving the analytic remainder
   // t·s·cos ψ·(1 − (1 − e)^β)/e (bounded by β·t·s), computed without cancellation through
@@ -249,6 +280,34 @@ export function lineIntegral(t: number, phi0: number, phi1: number, beta: number
   };
   const r = integrate(g, toPsi(a), toPsi(b), LINE_TOL);
   return { value: b - a - r.value, error: r.error };
+}
+
+/**
+ * Antiderivative of (1 − t² sec² φ)^β for a whole number β (even d): the binomial expansion
+ * Σ_j C(β, j)(−t²)^j ∫sec^(2j) φ dφ with ∫sec^(2j) φ dφ = Σ_{i<j} C(j − 1, i) tan^(2i+1) φ/(2i + 1)
+ * (substitute T = tan φ, sec² φ dφ = dT, sec^(2j−2) = (1 + T²)^(j−1)). On the arc |t·tan φ| ≤ 1,
+ * so every term is at most C(β, j)·C(j − 1, i): no cancellation worse than 3^β rounding errors.
+ */
+function secPowerSeries(t: number, phi: number, beta: number): number {
+  const T = Math.tan(phi);
+  const t2 = t * t;
+  let sum = phi;
+  let cb = 1; // C(β, j)
+  let tj = 1; // (−t²)^j
+  for (let j = 1; j <= beta; j++) {
+    cb = (cb * (beta - j + 1)) / j;
+    tj *= -t2;
+    let inner = 0;
+    let ci = 1; // C(j − 1, i)
+    let Tp = T; // T^(2i+1)
+    for (let i = 0; i < j; i++) {
+      inner += (ci * Tp) / (2 * i + 1);
+      ci = (ci * (j - 1 - i)) / (i + 1);
+      Tp *= T * T;
+    }
+    sum += cb * tj * inner;
+  }
+  return sum;
 }
 
 /** ∫_{−1}^{1} (1 − s²)^(n/2) ds by Wallis's recurrence I_n = I_{n−2}·n/(n + 1), I_0 = 2, I_1 = π/2. */
@@ -305,19 +364,25 @@ function ballProbability3(a: number[][], t: number[], d: number, offered: (y: Ar
   const beta = (d - 1) / 2; // each slice: the disk law of dimension d − 1
   const y = new Float64Array(3);
   let innerError = 0;
-  const lines: Line2[] = [];
+  const lines = lines2(m);
+  let R = 0;
+  const offeredInSlice = (y1: number, y2: number) => { y[0] = R * y1; y[1] = R * y2; return offered(y); };
   const slice = (s: number): number => {
-    const R = Math.sqrt(Math.max(0, 1 - s * s));
+    R = Math.sqrt(Math.max(0, 1 - s * s));
     if (!(R > 0)) return 0;
-    lines.length = 0;
+    let n = 0;
     for (let i = 0; i < m; i++) {
       const ai = a[i]!;
       const na = Math.hypot(ai[0]!, ai[1]!);
       if (na < 1e-15) continue; // parallel to the slice: constant on it, decided by the points
-      lines.push(line2(ai[0]! / na, ai[1]! / na, (t[i]! - ai[2]! * s) / (R * na)));
+      lines.ax[n] = ai[0]! / na;
+      lines.ay[n] = ai[1]! / na;
+      lines.t[n] = (t[i]! - ai[2]! * s) / (R * na);
+      n++;
     }
+    lines.n = n;
     y[2] = s;
-    const p = diskProbability(lines, beta, (y1, y2) => { y[0] = R * y1; y[1] = R * y2; return offered(y); });
+    const p = diskProbability(lines, beta, offeredInSlice);
     const w = Math.pow(1 - s * s, half) / norm;
     innerError = Math.max(innerError, p.error);
     return w * p.value;
@@ -332,7 +397,7 @@ function ballProbability3(a: number[][], t: number[], d: number, offered: (y: Ar
     // power, so the rule converges fast (a sigmoidal transformation, P. Sidi, "A new variable
     // transformation for numerical integration", 1993, in Numerical Integration IV, Birkhäuser)
     const w = hi - lo;
-    const r = integrate((tau) => 6 * tau * (1 - tau) * w * slice(lo + w * tau * tau * (3 - 2 * tau)), 0, 1, (SLICE_TOL * w) / 2);
+    const r = integrateSmooth((tau) => 6 * tau * (1 - tau) * w * slice(lo + w * tau * tau * (3 - 2 * tau)), 0, 1, (SLICE_TOL * w) / 2);
     value += r.value;
     error += r.error;
   }

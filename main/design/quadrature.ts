@@ -49,6 +49,7 @@ export function gaussLegendre(n: number): { nodes: Float64Array; weights: Float6
 }
 
 const RULE = gaussLegendre(10);
+const RULE5 = gaussLegendre(5);
 
 /** The 10-point Gauss–Legendre rule on [a, b]. */
 export function gauss10(f: (x: number) => number, a: number, b: number): number {
@@ -57,6 +58,27 @@ export function gauss10(f: (x: number) => number, a: number, b: number): number 
   let s = 0;
   for (let i = 0; i < 10; i++) s += RULE.weights[i]! * f(mid + half * RULE.nodes[i]!);
   return s * half;
+}
+
+/**
+ * ∫_a^b f for a smooth f: the 10-point rule, accepted when the 5-point rule agrees with it within
+ * `tol` (then the difference, an estimate of the 5-point rule's error, is a conservative error
+ * for the 10-point value); otherwise adaptive bisection. Fifteen evaluations where the integrand
+ * is smooth on [a, b], against thirty for `integrate`.
+ */
+export function integrateSmooth(f: (x: number) => number, a: number, b: number, tol: number): Integral {
+  if (!(b > a)) return { value: 0, error: 0 };
+  const half = (b - a) / 2;
+  const mid = (a + b) / 2;
+  let s5 = 0;
+  for (let i = 0; i < 5; i++) s5 += RULE5.weights[i]! * f(mid + half * RULE5.nodes[i]!);
+  s5 *= half;
+  const s10 = gauss10(f, a, b);
+  const diff = Math.abs(s10 - s5);
+  if (diff <= tol) return { value: s10, error: diff };
+  const out = { value: 0, error: 0 };
+  refine(f, a, b, s10, Math.max(tol, 1e-17), 30, out);
+  return out;
 }
 
 /**
