@@ -394,8 +394,9 @@ function ballProbability3(a: number[][], t: number[], d: number, offered: (y: Ar
     if (!(hi - lo > 1e-15)) continue;
     // s = lo + (hi − lo)·τ²(3 − 2τ): the slice probability behaves like a power of the distance
     // to the piece's ends (a plane touching the sphere, the weight at ±1); the map raises that
-    // power, so the rule converges fast (a sigmoidal transformation, P. Sidi, "A new variable
-    // transformation for numerical integration", 1993, in Numerical Integration IV, Birkhäuser)
+    // power, so the rule converges fast (the cubic polynomial transformation used to periodize
+    // integrands for lattice rules, I. H. Sloan and S. Joe, "Lattice Methods for Multiple
+    // Integration", Oxford, 1994, §2.12 — from memory)
     const w = hi - lo;
     const r = integrateSmooth((tau) => 6 * tau * (1 - tau) * w * slice(lo + w * tau * tau * (3 - 2 * tau)), 0, 1, (SLICE_TOL * w) / 2);
     value += r.value;
