@@ -168,6 +168,7 @@ export function computeApsBlock(
   );
 
   const state = new Uint8Array(nAtoms);
+  const realState = new Uint8Array(nAtoms); // simulateAll only: the states geometry proves
   const unknown: number[] = [];
   const total = points.replicates * points.perReplicate;
   const proj = plans.map((p) => (p.kind === 'linear' ? new Float64Array(total) : null));
@@ -185,12 +186,14 @@ export function computeApsBlock(
         const p = plans[a]!;
         let s: number;
         if (p.kind === 'fixed') s = p.truth[r]!;
-        else if (simulateAll) s = UNKNOWN;
         else if (p.kind === 'linear') s = linearState(p.m0[r]!, p.norm[r]!, delta, p.op);
         else { const b = bounds[k]![a]!; s = stateFromBounds(b.lo[r]!, b.hi[r]!, p.op); }
+        if (simulateAll) { realState[a] = s; if (p.kind !== 'fixed') s = UNKNOWN; }
         state[a] = s;
         if (s === UNKNOWN) { unknown.push(a); if (a < 32) mask |= 1 << a; }
       }
+      // more draws only where the ball is not proved to lie on one side of the edge
+      const crossesEdge = !simulateAll || evalTree3(program.tree, realState) === UNKNOWN;
       straddle[k]![r] = mask >>> 0;
       const verdict = unknown.length === 0 ? (evalTree(program.tree, state) ? TRUE : FALSE) : evalTree3(program.tree, state);
       if (verdict !== UNKNOWN) {
@@ -240,7 +243,7 @@ export function computeApsBlock(
       const all = points.replicates * perRep;
       // the ball crosses an edge (unknown is not empty) but no point, or every point, was offered:
       // double the points until one lands on the other side, up to 2^MAX_REFINEMENT times
-      if (!undefinedPoint && (hits === 0 || hits === all)) {
+      if (!undefinedPoint && crossesEdge && (hits === 0 || hits === all)) {
         let level = 0;
         let total = all;
         while (level < MAX_REFINEMENT && (hits === 0 || hits === total)) {

@@ -77,7 +77,7 @@ export function integrateSmooth(f: (x: number) => number, a: number, b: number, 
   const diff = Math.abs(s10 - s5);
   if (diff <= tol) return { value: s10, error: diff };
   const out = { value: 0, error: 0 };
-  refine(f, a, b, s10, Math.max(tol, 1e-17), 30, out);
+  refine(f, a, b, s10, Math.max(tol, 1e-17), 24, out);
   return out;
 }
 
@@ -86,7 +86,7 @@ export function integrateSmooth(f: (x: number) => number, a: number, b: number, 
  * `maxDepth` bounds the bisection; an interval still unresolved there is accepted with its
  * difference counted in the error.
  */
-export function integrate(f: (x: number) => number, a: number, b: number, tol: number, maxDepth = 30): Integral {
+export function integrate(f: (x: number) => number, a: number, b: number, tol: number, maxDepth = 24): Integral {
   if (!(b > a)) return { value: 0, error: 0 };
   const out = { value: 0, error: 0 };
   refine(f, a, b, gauss10(f, a, b), Math.max(tol, 1e-17), maxDepth, out);
@@ -98,7 +98,10 @@ function refine(f: (x: number) => number, a: number, b: number, whole: number, t
   const left = gauss10(f, a, m);
   const right = gauss10(f, m, b);
   const diff = Math.abs(left + right - whole);
-  if (diff <= tol || depth <= 0 || !(m > a && b > m)) {
+  // below a few rounding errors of the value itself the difference is noise, not error: accept
+  // (otherwise a tolerance halved below the rounding level would split every interval)
+  const noise = 64 * Number.EPSILON * (Math.abs(left) + Math.abs(right));
+  if (diff <= tol || diff <= noise || depth <= 0 || !(m > a && b > m)) {
     out.value += left + right;
     out.error += diff;
     return;
