@@ -60,9 +60,19 @@ export interface DesignDelta {
   delta: number;
   boundary: number;
   constant: number;
+  /** Exact in closed form or by numerical integration to a stated error (exact corners included). */
   exact: number;
   simulated: number;
+  /** Largest stated error among simulated units and exact corners. */
   maxSimulationSe: number;
+  /** Units whose APS lies strictly between the rule's offer probabilities with two or more criteria crossing their ball. */
+  corner: number;
+  /** Of the corner units, those computed exactly (the rest were simulated). */
+  cornerExact: number;
+  /** Simulated units whose first estimate was exactly 0 or 1 and that were given more points (up to 64 times the draws). */
+  refined: number;
+  /** Of those, units still at exactly 0 or 1 after the most points. */
+  refinedAtBound: number;
 }
 
 export interface OutcomeResults extends OutcomeEstimates {

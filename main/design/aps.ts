@@ -11,8 +11,15 @@
 //      the common case), the verdict depends only on the position along that normal, whose
 //      distribution is the ball's one-dimensional marginal (cap fractions, ball-geometry.ts):
 //      the APS is exact;
-//   3. otherwise the APS is estimated from a randomized quasi-Monte Carlo point set in the ball
-//      (ball-points.ts), with a standard error from independent replicates.
+//   3. if they are all linear and their normals span two or three dimensions (a corner), the
+//      verdict depends only on the projection onto that span, whose law is the ball's 2- or
+//      3-dimensional marginal: the APS is integrated numerically to about 1e-10 (corners.ts);
+//   4. otherwise (a non-linear criterion, or normals spanning more than three dimensions) the APS
+//      is estimated from a randomized quasi-Monte Carlo point set in the ball (ball-points.ts),
+//      with a standard error from independent replicates. A unit whose estimate comes out exactly
+//      0 or 1 although its ball crosses an edge gets more points, doubling up to 64 times
+//      (MAX_REFINEMENT): a sequential stopping rule of the kind common in Monte Carlo practice, so
+//      a small but positive propensity does not drop the unit from the sample.
 
 import type { CompiledProgram, DesignColumns } from '../rules/ir.ts';
 import { intervalColumns, evalColumn, gradColumn } from '../rules/evaluate-columns.ts';
@@ -21,13 +28,16 @@ import { atomTruthColumn, holds } from '../rules/atoms.ts';
 import { evalTree, evalTree3, FALSE, TRUE, UNKNOWN } from '../rules/logic.ts';
 import type { Comparator } from '../rules/types.ts';
 import { ballMarginalCdf } from './ball-geometry.ts';
-import type { BallPointSet } from './ball-points.ts';
+import { ballPointExtension, MAX_REFINEMENT, type BallPointSet } from './ball-points.ts';
+import { cornerProbability, type LinearCut } from './corners.ts';
 
 export const METHOD_CONSTANT = 0;
 export const METHOD_EXACT = 1;
 export const METHOD_SIMULATED = 2;
 export const METHOD_UNDEFINED = 3;
-export const METHOD_NAMES = ['constant', 'exact', 'simulated', 'undefined'] as const;
+/** Exact up to a stated numerical-integration error: two or three independent linear criteria cross the ball. */
+export const METHOD_EXACT_CORNER = 4;
+export const METHOD_NAMES = ['constant', 'exact', 'simulated', 'undefined', 'exact-corner'] as const;
 export type ApsMethodName = (typeof METHOD_NAMES)[number];
 
 export interface ApsSettings {
@@ -41,12 +51,23 @@ export interface ApsColumns {
   n: number;
   deltas: number[];
   aps: Float64Array[];
-  /** Standard error of a simulated APS (0 when constant or exact). */
+  /**
+   * Standard error of a simulated APS; for an exact corner, the numerical integration's error
+   * estimate (0 when constant or exact in closed form).
+   */
   se: Float64Array[];
   method: Uint8Array[];
   /** Bit a set when atom a (a < 32) can change value on the unit's ball. */
   straddle: Uint32Array[];
+  /**
+   * Simulated units whose first estimate was exactly 0 or 1: the number of doublings of the draws
+   * used (1 ... MAX_REFINEMENT), plus REFINED_AT_BOUND if still 0 or 1 after the last; 0 otherwise.
+   */
+  refined: Uint8Array[];
 }
+
+/** Flag in `refined`: the estimate was still exactly 0 or 1 after MAX_REFINEMENT doublings. */
+export const REFINED_AT_BOUND = 128;
 
 type AtomPlan =
   | { kind: 'fixed'; truth: Uint8Array }
@@ -134,6 +155,7 @@ export function computeApsBlock(
   const se = deltas.map(() => new Float64Array(n));
   const method = deltas.map(() => new Uint8Array(n));
   const straddle = deltas.map(() => new Uint32Array(n));
+  const refined = deltas.map(() => new Uint8Array(n));
 
   // interval bounds of non-linear criteria over the box enclosing each ball, per delta
   const bounds: Array<Array<{ lo: Float64Array; hi: Float64Array } | null>> = deltas.map((delta) =>
@@ -146,13 +168,14 @@ export function computeApsBlock(
   );
 
   const state = new Uint8Array(nAtoms);
+  const realState = new Uint8Array(nAtoms); // simulateAll only: the states geometry proves
   const unknown: number[] = [];
   const total = points.replicates * points.perReplicate;
   const proj = plans.map((p) => (p.kind === 'linear' ? new Float64Array(total) : null));
   const projFor = new Int32Array(nAtoms).fill(-1); // unit whose projections are cached
   const x0 = new Float64Array(d);
   const disc = new Float64Array(program.discrete.length);
-  const repMeans = new Float64Array(points.replicates);
+  const repHits = new Float64Array(points.replicates);
 
   for (let r = 0; r < n; r++) {
     for (let k = 0; k < nd; k++) {
@@ -163,12 +186,14 @@ export function computeApsBlock(
         const p = plans[a]!;
         let s: number;
         if (p.kind === 'fixed') s = p.truth[r]!;
-        else if (simulateAll) s = UNKNOWN;
         else if (p.kind === 'linear') s = linearState(p.m0[r]!, p.norm[r]!, delta, p.op);
         else { const b = bounds[k]![a]!; s = stateFromBounds(b.lo[r]!, b.hi[r]!, p.op); }
+        if (simulateAll) { realState[a] = s; if (p.kind !== 'fixed') s = UNKNOWN; }
         state[a] = s;
         if (s === UNKNOWN) { unknown.push(a); if (a < 32) mask |= 1 << a; }
       }
+      // more draws only where the ball is not proved to lie on one side of the edge
+      const crossesEdge = !simulateAll || evalTree3(program.tree, realState) === UNKNOWN;
       straddle[k]![r] = mask >>> 0;
       const verdict = unknown.length === 0 ? (evalTree(program.tree, state) ? TRUE : FALSE) : evalTree3(program.tree, state);
       if (verdict !== UNKNOWN) {
@@ -181,6 +206,13 @@ export function computeApsBlock(
       if (exact !== null) {
         aps[k]![r] = qI + (qE - qI) * exact;
         method[k]![r] = METHOD_EXACT;
+        continue;
+      }
+      const corner = simulateAll ? null : exactCorner(program, plans, unknown, state, r, d, delta);
+      if (corner !== null) {
+        aps[k]![r] = qI + (qE - qI) * corner.value;
+        se[k]![r] = Math.abs(qE - qI) * corner.error;
+        method[k]![r] = METHOD_EXACT_CORNER;
         continue;
       }
 
@@ -201,54 +233,83 @@ export function computeApsBlock(
       }
       for (let j = 0; j < d; j++) x0[j] = cols.continuous[j]![r]!;
       for (let j = 0; j < disc.length; j++) disc[j] = cols.discrete[j]![r]!;
-      const undefinedPoint = simulateUnit(program, plans, unknown, state, proj, r, delta, x0, disc, scales, points, repMeans);
+      const table = verdictTable(program, unknown, state);
+      const unit: UnitSim = { plans, unknown, verdict: table, r, delta, x0, disc, scales };
+      repHits.fill(0);
+      let undefinedPoint = countHits(unit, points, proj, repHits);
+      let perRep = points.perReplicate;
+      let hits = 0;
+      for (let rep = 0; rep < points.replicates; rep++) hits += repHits[rep]!;
+      const all = points.replicates * perRep;
+      // the ball crosses an edge (unknown is not empty) but no point, or every point, was offered:
+      // double the points until one lands on the other side, up to 2^MAX_REFINEMENT times
+      if (!undefinedPoint && crossesEdge && (hits === 0 || hits === all)) {
+        let level = 0;
+        let total = all;
+        while (level < MAX_REFINEMENT && (hits === 0 || hits === total)) {
+          level++;
+          const more = ballPointExtension(points, settings.seed, level);
+          const add = new Float64Array(points.replicates);
+          if (countHits(unit, more, null, add)) { undefinedPoint = true; break; }
+          for (let rep = 0; rep < points.replicates; rep++) { repHits[rep] = repHits[rep]! + add[rep]!; hits += add[rep]!; }
+          perRep += more.perReplicate;
+          total = points.replicates * perRep;
+        }
+        refined[k]![r] = level | (hits === 0 || hits === total ? REFINED_AT_BOUND : 0);
+      }
       if (undefinedPoint) {
         aps[k]![r] = NaN;
         method[k]![r] = METHOD_UNDEFINED;
         continue;
       }
       let mean = 0;
-      for (let rep = 0; rep < points.replicates; rep++) mean += repMeans[rep]!;
+      for (let rep = 0; rep < points.replicates; rep++) mean += repHits[rep]! / perRep;
       mean /= points.replicates;
       let ss = 0;
-      for (let rep = 0; rep < points.replicates; rep++) ss += (repMeans[rep]! - mean) ** 2;
+      for (let rep = 0; rep < points.replicates; rep++) ss += (repHits[rep]! / perRep - mean) ** 2;
       const sdMean = Math.sqrt(ss / (points.replicates - 1) / points.replicates);
       aps[k]![r] = qI + (qE - qI) * mean;
       se[k]![r] = Math.abs(qE - qI) * sdMean;
       method[k]![r] = METHOD_SIMULATED;
     }
   }
-  return { n, deltas: deltas.slice(), aps, se, method, straddle };
+  return { n, deltas: deltas.slice(), aps, se, method, straddle, refined };
 }
 
-/**
- * Estimate P(eligible) on one unit's ball from the shared point set, replicate by replicate
- * (means written to `repMeans`). The rule's verdict for every combination of the undecided
- * criteria is tabulated first, so each point costs one comparison per undecided criterion.
- * Returns true if some point's margin was undefined (a division by zero inside the ball).
- */
-function simulateUnit(
-  program: CompiledProgram,
-  plans: AtomPlan[],
-  unknown: number[],
-  state: Uint8Array,
-  proj: Array<Float64Array | null>,
-  r: number,
-  delta: number,
-  x0: Float64Array,
-  disc: Float64Array,
-  scales: ArrayLike<number>,
-  points: BallPointSet,
-  repMeans: Float64Array,
-): boolean {
+/** The rule's verdict (1 = offer) for every combination of the undecided criteria, bit i for unknown[i]. */
+function verdictTable(program: CompiledProgram, unknown: number[], state: Uint8Array): Uint8Array {
   const u = unknown.length;
-  const d = x0.length;
   const verdict = new Uint8Array(1 << u);
   for (let mask = 0; mask < verdict.length; mask++) {
     for (let i = 0; i < u; i++) state[unknown[i]!] = (mask >> i) & 1 ? TRUE : FALSE;
     verdict[mask] = evalTree(program.tree, state) ? 1 : 0;
   }
   for (const a of unknown) state[a] = UNKNOWN;
+  return verdict;
+}
+
+/** What the simulation of one unit at one delta needs. */
+interface UnitSim {
+  plans: AtomPlan[];
+  unknown: number[];
+  verdict: Uint8Array;
+  r: number;
+  delta: number;
+  x0: Float64Array;
+  disc: Float64Array;
+  scales: ArrayLike<number>;
+}
+
+/**
+ * Count, replicate by replicate, the points of `points` at which the rule offers on one unit's
+ * ball (added to `repHits`). Linear margins come from `proj` (⟨w, z⟩ per point, cached per unit)
+ * when given, else are computed here. Returns true if some point's margin was undefined (a
+ * division by zero inside the ball).
+ */
+function countHits(unit: UnitSim, points: BallPointSet, proj: Array<Float64Array | null> | null, repHits: Float64Array): boolean {
+  const { plans, unknown, verdict, r, delta, x0, disc, scales } = unit;
+  const u = unknown.length;
+  const d = x0.length;
   const pts = points.points;
   const x = new Float64Array(d);
   let undefinedPoint = false;
@@ -261,8 +322,12 @@ function simulateUnit(
       for (let i = 0; i < u; i++) {
         const p = plans[unknown[i]!]!;
         let m: number;
-        if (p.kind === 'linear') m = p.m0[r]! + delta * proj[unknown[i]!]![s]!;
-        else if (p.kind === 'nonlinear') {
+        if (p.kind === 'linear') {
+          let v: number;
+          if (proj) v = proj[unknown[i]!]![s]!;
+          else { v = 0; for (let j = 0; j < d; j++) v += p.w[r * d + j]! * pts[s * d + j]!; }
+          m = p.m0[r]! + delta * v;
+        } else if (p.kind === 'nonlinear') {
           if (!movedX) { for (let j = 0; j < d; j++) x[j] = x0[j]! + delta * scales[j]! * pts[s * d + j]!; movedX = true; }
           m = p.fn(x, disc);
           if (Number.isNaN(m)) undefinedPoint = true;
@@ -271,9 +336,32 @@ function simulateUnit(
       }
       hits += verdict[mask]!;
     }
-    repMeans[rep] = hits / points.perReplicate;
+    repHits[rep] = repHits[rep]! + hits;
   }
   return undefinedPoint;
+}
+
+/**
+ * When every undecided criterion is linear and their normals span two or three dimensions, the
+ * exact offer probability on the unit ball (corners.ts), with its integration error; else null.
+ */
+function exactCorner(
+  program: CompiledProgram,
+  plans: AtomPlan[],
+  unknown: number[],
+  state: Uint8Array,
+  r: number,
+  d: number,
+  delta: number,
+): { value: number; error: number } | null {
+  if (unknown.length < 2 || unknown.length > 24) return null;
+  const cuts: LinearCut[] = [];
+  for (const a of unknown) {
+    const p = plans[a]!;
+    if (p.kind !== 'linear') return null;
+    cuts.push({ m: p.m0[r]!, w: p.w.subarray(r * d, r * d + d), op: p.op });
+  }
+  return cornerProbability(cuts, delta, d, verdictTable(program, unknown, state));
 }
 
 /**
@@ -347,6 +435,7 @@ export function allocateApsColumns(n: number, deltas: number[]): ApsColumns {
     se: deltas.map(() => new Float64Array(n)),
     method: deltas.map(() => new Uint8Array(n)),
     straddle: deltas.map(() => new Uint32Array(n)),
+    refined: deltas.map(() => new Uint8Array(n)),
   };
 }
 
@@ -357,5 +446,6 @@ export function placeBlock(into: ApsColumns, block: ApsColumns, start: number): 
     into.se[k]!.set(block.se[k]!, start);
     into.method[k]!.set(block.method[k]!, start);
     into.straddle[k]!.set(block.straddle[k]!, start);
+    into.refined[k]!.set(block.refined[k]!, start);
   }
 }

@@ -60,6 +60,26 @@ export function replicatesFor(draws: number): number {
   return Math.max(2, Math.min(10, Math.floor(draws / 16)));
 }
 
+/** The Cranley–Patterson shift of replicate `rep` (the same for the base set and its extensions). */
+function replicateShift(seed: number, rep: number, dims: number): number[] {
+  const rng = createRng(seed, 1000 + rep);
+  return Array.from({ length: dims }, () => rng.next());
+}
+
+/** Halton points first, ..., first + count − 1, shifted by `shift` modulo 1 and mapped into the ball. */
+function shiftedBallPoints(d: number, shift: number[], first: number, count: number, out: Float64Array, offset: number): void {
+  const dims = cubeDimension(d);
+  const base = haltonPoints(count, dims, first);
+  const v = new Float64Array(dims);
+  for (let p = 0; p < count; p++) {
+    for (let j = 0; j < dims; j++) {
+      const u = base[p * dims + j]! + shift[j]!;
+      v[j] = u >= 1 ? u - 1 : u;
+    }
+    cubeToBall(v, d, out, offset + p * d);
+  }
+}
+
 /**
  * The randomized point set for a study: depends only on (d, draws, seed), so every unit, every
  * delta and every worker sees the same points (results change smoothly with delta and do not
@@ -69,19 +89,38 @@ export function ballPointSet(d: number, draws: number, seed: number): BallPointS
   const replicates = replicatesFor(draws);
   const perReplicate = Math.max(1, Math.ceil(draws / replicates));
   const dims = cubeDimension(d);
-  const base = haltonPoints(perReplicate, dims, 1);
   const points = new Float64Array(replicates * perReplicate * d);
-  const v = new Float64Array(dims);
   for (let rep = 0; rep < replicates; rep++) {
-    const rng = createRng(seed, 1000 + rep);
-    const shift = Array.from({ length: dims }, () => rng.next());
-    for (let p = 0; p < perReplicate; p++) {
-      for (let j = 0; j < dims; j++) {
-        const u = base[p * dims + j]! + shift[j]!;
-        v[j] = u >= 1 ? u - 1 : u;
-      }
-      cubeToBall(v, d, points, (rep * perReplicate + p) * d);
-    }
+    shiftedBallPoints(d, replicateShift(seed, rep, dims), 1, perReplicate, points, rep * perReplicate * d);
   }
   return { d, replicates, perReplicate, points };
+}
+
+/** Largest number of doublings of the draws for a unit whose simulated value is 0 or 1: 2^6 = 64× (common practice). */
+export const MAX_REFINEMENT = 6;
+
+const extensions = new Map<string, BallPointSet>();
+
+/**
+ * The points that double a study's point set for the `level`-th time (level 1 ... MAX_REFINEMENT):
+ * per replicate, Halton points P·2^(level−1) + 1 ... P·2^level (P the base set's points per
+ * replicate) under the same replicate's shift, so the base set and its first `level` extensions
+ * together are the first P·2^level points of every replicate's randomized sequence. Like the base
+ * set it depends only on (d, draws, seed); kept once computed (every worker computes its own).
+ */
+export function ballPointExtension(base: BallPointSet, seed: number, level: number): BallPointSet {
+  const key = `${base.d}|${base.replicates}|${base.perReplicate}|${seed}|${level}`;
+  const known = extensions.get(key);
+  if (known) return known;
+  const d = base.d;
+  const dims = cubeDimension(d);
+  const count = base.perReplicate * 2 ** (level - 1);
+  const points = new Float64Array(base.replicates * count * d);
+  for (let rep = 0; rep < base.replicates; rep++) {
+    shiftedBallPoints(d, replicateShift(seed, rep, dims), count + 1, count, points, rep * count * d);
+  }
+  const set = { d, replicates: base.replicates, perReplicate: count, points };
+  if (extensions.size >= 4 * MAX_REFINEMENT) extensions.clear();
+  extensions.set(key, set);
+  return set;
 }

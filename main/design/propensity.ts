@@ -7,7 +7,7 @@ import type { CompiledProgram, DesignColumns } from '../rules/ir.ts';
 import type { Checked } from '../rules/types.ts';
 import {
   allocateApsColumns, computeApsBlock, placeBlock, sliceColumns,
-  METHOD_CONSTANT, METHOD_EXACT, METHOD_SIMULATED, METHOD_UNDEFINED,
+  METHOD_CONSTANT, METHOD_EXACT, METHOD_EXACT_CORNER, METHOD_SIMULATED, METHOD_UNDEFINED, REFINED_AT_BOUND,
   type ApsColumns, type ApsSettings,
 } from './aps.ts';
 import { ballPointSet, type BallPointSet } from './ball-points.ts';
@@ -24,13 +24,22 @@ export interface PropensityOptions {
 export interface DeltaSummary {
   delta: number;
   constant: number;
+  /** Exact in closed form or by numerical integration (exact corners included). */
   exact: number;
   simulated: number;
   undefined: number;
   /** Units with 0 < APS < 1. */
   boundary: number;
-  /** Largest simulation standard error among simulated units (0 if none). */
+  /** Largest stated error among simulated units and exact corners (0 if none). */
   maxSe: number;
+  /** Corner units: an APS strictly between the rule's two offer probabilities and two or more criteria crossing the ball. */
+  corner: number;
+  /** Corner units whose APS was computed exactly (parallel normals in closed form, or an exact corner). */
+  cornerExact: number;
+  /** Simulated units whose first estimate was exactly 0 or 1 and that were given more points. */
+  refined: number;
+  /** Of those, units still at exactly 0 or 1 after the largest number of points. */
+  refinedAtBound: number;
   /** For each atom: boundary units whose ball it crosses (which criterion identifies the estimate). */
   straddlingByAtom: number[];
 }
@@ -74,17 +83,28 @@ export function validateSettings(settings: ApsSettings, basePath = 'settings'): 
 
 export function summarize(program: CompiledProgram, result: ApsColumns): DeltaSummary[] {
   return result.deltas.map((delta, k) => {
-    const counts = [0, 0, 0, 0];
+    const counts = [0, 0, 0, 0, 0];
     let boundary = 0;
     let maxSe = 0;
+    let corner = 0;
+    let cornerExact = 0;
+    let refined = 0;
+    let refinedAtBound = 0;
+    const refinedCol = result.refined[k]!;
     const straddlingByAtom = program.atoms.map(() => 0);
     const aps = result.aps[k]!;
     const method = result.method[k]!;
     const straddle = result.straddle[k]!;
     const se = result.se[k]!;
     for (let r = 0; r < result.n; r++) {
-      counts[method[r]!]!++;
-      if (method[r] === METHOD_SIMULATED && se[r]! > maxSe) maxSe = se[r]!;
+      const m = method[r]!;
+      counts[m]!++;
+      if ((m === METHOD_SIMULATED || m === METHOD_EXACT_CORNER) && se[r]! > maxSe) maxSe = se[r]!;
+      if (refinedCol[r]) { refined++; if (refinedCol[r]! & REFINED_AT_BOUND) refinedAtBound++; }
+      if (m !== METHOD_CONSTANT && m !== METHOD_UNDEFINED && popcount(straddle[r]!) >= 2) {
+        corner++;
+        if (m === METHOD_EXACT || m === METHOD_EXACT_CORNER) cornerExact++;
+      }
       const p = aps[r]!;
       if (p > 0 && p < 1) {
         boundary++;
@@ -95,14 +115,24 @@ export function summarize(program: CompiledProgram, result: ApsColumns): DeltaSu
     return {
       delta,
       constant: counts[METHOD_CONSTANT]!,
-      exact: counts[METHOD_EXACT]!,
+      exact: counts[METHOD_EXACT]! + counts[METHOD_EXACT_CORNER]!,
       simulated: counts[METHOD_SIMULATED]!,
       undefined: counts[METHOD_UNDEFINED]!,
       boundary,
       maxSe,
       straddlingByAtom,
+      corner,
+      cornerExact,
+      refined,
+      refinedAtBound,
     };
   });
+}
+
+function popcount(x: number): number {
+  let c = 0;
+  for (let v = x >>> 0; v; v &= v - 1) c++;
+  return c;
 }
 
 /** Everything a block computation needs besides its rows; plain data, so it can cross to a worker. */

@@ -293,7 +293,8 @@ export async function runStudy(study: Study, options: RunOptions): Promise<Check
     estimand: { kind: estimates.estimand, note: estimates.estimandNote, treatmentPer: estimates.treatmentPer },
     fidelity: prepared.fidelity,
     design: {
-      byDelta: ps.summary.map((s) => ({ delta: s.delta, boundary: s.boundary, constant: s.constant, exact: s.exact, simulated: s.simulated, maxSimulationSe: s.maxSe })),
+      byDelta: ps.summary.map((s) => ({ delta: s.delta, boundary: s.boundary, constant: s.constant, exact: s.exact, simulated: s.simulated, maxSimulationSe: s.maxSe,
+        corner: s.corner, cornerExact: s.cornerExact, refined: s.refined, refinedAtBound: s.refinedAtBound })),
       composition: composition.byDelta,
       mcSdBound: ps.mcSdBound,
     },

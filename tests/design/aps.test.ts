@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { METHOD_CONSTANT, METHOD_EXACT, METHOD_SIMULATED } from '../../main/design/aps.ts';
+import { computeApsBlock, METHOD_CONSTANT, METHOD_EXACT, METHOD_EXACT_CORNER, METHOD_SIMULATED } from '../../main/design/aps.ts';
+import { ballPointSet } from '../../main/design/ball-points.ts';
 import { computePropensity, type PropensityResult } from '../../main/design/propensity.ts';
 import { createRng } from '../../main/design/random.ts';
 import type { CompiledProgram, DesignColumns } from '../../main/rules/ir.ts';
@@ -100,47 +101,63 @@ describe('one straddling hyperplane: exact cap fractions', () => {
   });
 });
 
-describe('corners: two straddling criteria (simulation)', () => {
-  it('two perpendicular cut-offs through the centre: APS = 1/4 with "all" and 3/4 with "any" (symmetry)', () => {
+describe('corners: two straddling criteria', () => {
+  it('two perpendicular cut-offs through the centre: APS = 1/4 with "all" and 3/4 with "any" (symmetry), exactly; simulated within the bound', () => {
     const vars = [cont('x', 1), cont('y', 1)];
     const all = compile(vars, { all: [{ value: 'x', op: '<=', limit: 0 }, { value: 'y', op: '<=', limit: 0 }] });
     const any = compile(vars, { any: [{ value: 'x', op: '<=', limit: 0 }, { value: 'y', op: '<=', limit: 0 }] });
     const cols = columns(all, [{ x: 0, y: 0 }]);
     const a = run(all, cols, [0.1]);
     const b = run(any, cols, [0.1]);
-    expect(a.method[0]![0]).toBe(METHOD_SIMULATED);
-    expect(Math.abs(a.aps[0]![0]! - 0.25)).toBeLessThan(4 * a.mcSdBound);
-    expect(Math.abs(b.aps[0]![0]! - 0.75)).toBeLessThan(4 * b.mcSdBound);
-    expect(a.se[0]![0]).toBeGreaterThan(0);
+    expect(a.method[0]![0]).toBe(METHOD_EXACT_CORNER);
+    expect(a.aps[0]![0]).toBeCloseTo(0.25, 14);
+    expect(b.aps[0]![0]).toBeCloseTo(0.75, 14);
+    const sim = computeApsBlock(all, cols, [1, 1], a.settings, ballPointSet(2, 4000, 1), { simulateAll: true });
+    expect(sim.method[0]![0]).toBe(METHOD_SIMULATED);
+    expect(Math.abs(sim.aps[0]![0]! - 0.25)).toBeLessThan(4 * a.mcSdBound);
+    expect(sim.se[0]![0]).toBeGreaterThan(0);
   });
 
-  it('off-centre corners in the disk: error within the stated bound, and the replicate SE covers it', () => {
-    // Exact value by integrating the chord length of {z ∈ disk : z1 ≤ a, z2 ≤ b} over z1 (Simpson).
+  it('off-centre corners in the disk: exact to 1e-12; the simulation within its bound, its replicate SE covering the error', () => {
+    // Exact value: the area of {z ∈ disk : z1 ≤ a, z2 ≤ b} over π, integrating the chord length
+    // min(b, √(1 − z1²)) + √(1 − z1²) in closed form (∫√(1 − x²) dx = (x√(1 − x²) + asin x)/2).
     const exactCorner = (a: number, b: number) => {
-      const f = (z1: number) => {
-        const half = Math.sqrt(Math.max(0, 1 - z1 * z1));
-        return Math.max(0, Math.min(b, half) + half);
+      const F = (x: number) => (x * Math.sqrt(1 - x * x) + Math.asin(x)) / 2; // ∫√(1 − x²)
+      const top = Math.min(1, a);
+      if (b <= -1 || top <= -1) return 0;
+      // where √(1 − z1²) < b the chord is cut by the circle: |z1| > √(1 − b²) (if b < 1)
+      const x0 = b < 1 ? Math.sqrt(1 - b * b) : 0;
+      let area = 0;
+      const piece = (lo: number, hi: number, cut: boolean) => {
+        if (!(hi > lo)) return;
+        area += cut ? b * (hi - lo) + (F(hi) - F(lo)) : 2 * (F(hi) - F(lo));
       };
-      return simpson(f, -1, Math.min(1, a), 40000) / Math.PI;
+      if (b >= 1) piece(-1, top, false);
+      else if (b >= 0) { piece(-1, Math.min(top, -x0), false); piece(Math.max(-1, -x0), Math.min(top, x0), true); piece(x0, top, false); }
+      else piece(-x0, Math.min(top, x0), true); // b < 0: only where −√(1 − z1²) < b, i.e. |z1| < √(1 − b²)
+      return area / Math.PI;
     };
     const p = compile([cont('x', 1), cont('y', 1)], { all: [{ value: 'x', op: '<=', limit: 0 }, { value: 'y', op: '<=', limit: 0 }] });
     const rng = createRng(17);
     const rows = Array.from({ length: 120 }, () => ({ x: (rng.next() - 0.5) * 0.12, y: (rng.next() - 0.5) * 0.12 }));
     const delta = 0.1;
-    const res = run(p, columns(p, rows), [delta], 4000, 9);
+    const cols = columns(p, rows);
+    const res = run(p, cols, [delta], 4000, 9);
+    const sim = computeApsBlock(p, cols, [1, 1], res.settings, ballPointSet(2, 4000, 9), { simulateAll: true });
     let covered = 0;
-    let simulated = 0;
+    let corners = 0;
     rows.forEach((row, i) => {
       const exact = exactCorner(-row.x / delta, -row.y / delta);
-      const err = Math.abs(res.aps[0]![i]! - exact);
+      expect(Math.abs(res.aps[0]![i]! - exact)).toBeLessThan(1e-12);
+      const err = Math.abs(sim.aps[0]![i]! - exact);
       expect(err).toBeLessThan(4 * res.mcSdBound); // METHOD.md §1: MC SD at most 0.5/√S
-      if (res.method[0]![i] === METHOD_SIMULATED) {
-        simulated++;
-        if (err <= 3 * res.se[0]![i]! + 1e-6) covered++;
-      } else expect(err).toBeLessThan(1e-9);
+      if (res.method[0]![i] === METHOD_EXACT_CORNER) {
+        corners++;
+        if (err <= 3 * sim.se[0]![i]! + 1e-6) covered++;
+      }
     });
-    expect(simulated).toBeGreaterThan(60);
-    expect(covered / simulated).toBeGreaterThan(0.9);
+    expect(corners).toBeGreaterThan(60);
+    expect(covered / corners).toBeGreaterThan(0.9);
   });
 });
 
@@ -179,8 +196,8 @@ describe('discrete inputs, lookups, lotteries and logic', () => {
     expect(r2.aps[0]![0]).toBeCloseTo(0.5, 12);
     expect(r2.aps[0]![1]).toBe(1);
     // at (0, 5) both x ≥ 0 and y ≥ 5 straddle through the centre and one of them must hold: 3/4
-    expect(Math.abs(r2.aps[0]![2]! - 0.75)).toBeLessThan(4 * r2.mcSdBound);
-    expect(r2.method[0]![2]).toBe(METHOD_SIMULATED);
+    expect(r2.aps[0]![2]).toBeCloseTo(0.75, 12);
+    expect(r2.method[0]![2]).toBe(METHOD_EXACT_CORNER);
   });
 
   it('two parallel limits on the same variable are combined exactly (segment formula)', () => {

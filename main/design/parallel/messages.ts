@@ -27,6 +27,7 @@ export interface WorkerDone {
   se: Float64Array[];
   method: Uint8Array[];
   straddle: Uint32Array[];
+  refined: Uint8Array[];
 }
 
 export interface WorkerFailed {

@@ -92,7 +92,7 @@ export async function computePropensityParallel(
         w.on('message', (msg: FromWorker) => {
           if (msg.type === 'failed') { reject(new Error(`propensity worker failed: ${msg.message}\n${msg.stack ?? ''}`)); return; }
           const start = blocks[msg.id]![0];
-          placeBlock(out, { n: 0, deltas: settings.deltas, aps: msg.aps, se: msg.se, method: msg.method, straddle: msg.straddle }, start);
+          placeBlock(out, { n: 0, deltas: settings.deltas, aps: msg.aps, se: msg.se, method: msg.method, straddle: msg.straddle, refined: msg.refined }, start);
           done += blocks[msg.id]![1] - start;
           report(done);
           if (++finished === blocks.length) { options.signal?.removeEventListener('abort', onAbort); resolve(); }

@@ -18,8 +18,8 @@ parentPort!.on('message', (msg: ToWorker) => {
   try {
     if (!init || !program) throw new Error('worker received a task before its program');
     const out = computeApsBlock(program, { n: msg.n, continuous: msg.continuous, discrete: msg.discrete }, init.scales, init.settings, init.points);
-    const reply: FromWorker = { type: 'done', id: msg.id, aps: out.aps, se: out.se, method: out.method, straddle: out.straddle };
-    parentPort!.postMessage(reply, [...out.aps, ...out.se, ...out.method, ...out.straddle].map((a) => a.buffer as ArrayBuffer));
+    const reply: FromWorker = { type: 'done', id: msg.id, aps: out.aps, se: out.se, method: out.method, straddle: out.straddle, refined: out.refined };
+    parentPort!.postMessage(reply, [...out.aps, ...out.se, ...out.method, ...out.straddle, ...out.refined].map((a) => a.buffer as ArrayBuffer));
   } catch (e) {
     const err = e as Error;
     const reply: FromWorker = { type: 'failed', id: msg.id, message: err.message, stack: err.stack };
