@@ -253,7 +253,7 @@ export class AppState {
     this.draft = normalizeDraft(r.value.study);
     this.baseDir = null; this.studyPath = null; this.fromSample = false; this.openProblems = [];
     this.results = r.value.results;
-    this.report = { outDir: r.value.outDir, files: r.value.files, results: r.value.results, runId: r.value.runId, timings: {} };
+    this.report = { outDir: r.value.outDir, files: r.value.files, results: r.value.results, runId: r.value.runId, studySha256: r.value.studySha256, timings: {} };
     this.memoFiles = r.value.files.filter((f) => MEMO_EXT.test(f));
     this.runState = 'done';
     this.step = 'evidence';

@@ -77,9 +77,10 @@ export async function evaluateStudy(args: EvaluateArgs, ctx: CallContext = {}): 
   }
   if (!run.ok) return refuse(run.problems);
   const r = run.value;
+  const studySha256 = studyFingerprint(study.value, loaded.value.baseDir);
   let written;
   try {
-    written = await writeRun(study.value, studyFingerprint(study.value, loaded.value.baseDir), r, {
+    written = await writeRun(study.value, studySha256, r, {
       outDir: resolve(args.outDir),
       formats,
       ...(args.workspacePath ? { workspacePath: resolve(args.workspacePath) } : {}),
@@ -92,7 +93,7 @@ export async function evaluateStudy(args: EvaluateArgs, ctx: CallContext = {}): 
     throw e;
   }
   if (!written.ok) return refuse(written.problems);
-  return { ok: true, value: { outDir: resolve(args.outDir), files: written.value.files, results: r.results, runId: written.value.runId, timings: r.timings } };
+  return { ok: true, value: { outDir: resolve(args.outDir), files: written.value.files, results: r.results, runId: written.value.runId, studySha256, timings: r.timings } };
 }
 
 /** The bundled sample study end to end. */

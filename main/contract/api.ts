@@ -47,6 +47,8 @@ export interface EvaluateReport {
   files: string[];
   results: Results;
   runId: number | null;
+  /** Content hash of the study as run (study.fingerprint of the open study differs once it changes). */
+  studySha256: string;
   timings: Record<string, number>;
 }
 

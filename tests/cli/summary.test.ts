@@ -23,7 +23,7 @@ function results(): Results {
   } as unknown as ResultsCore) as Results;
 }
 
-const summary = (r: Results) => formatEvaluateSummary({ outDir: '/tmp/out', files: [], results: r, runId: null, timings: {} });
+const summary = (r: Results) => formatEvaluateSummary({ outDir: '/tmp/out', files: [], results: r, runId: null, studySha256: '', timings: {} });
 
 describe('the evaluate summary', () => {
   it('states the headline delta with why, the design, and each verdict from the findings', () => {

@@ -33,7 +33,7 @@ beforeAll(async () => {
     if (!run.ok) throw new Error(JSON.stringify(run.problems));
     const results: Results = JSON.parse(JSON.stringify(run.value.results));
     const memo = buildMemo(results, figureData(run.value), { createdAt: '2025-03-12T09:30:00Z' });
-    cases.set(folder, { results, memo, summary: formatEvaluateSummary({ outDir: '/tmp/x', files: [], results, runId: null, timings: {} }) });
+    cases.set(folder, { results, memo, summary: formatEvaluateSummary({ outDir: '/tmp/x', files: [], results, runId: null, studySha256: '', timings: {} }) });
   }
 }, 300_000);
 
