@@ -5,7 +5,7 @@
 // memo writes no digit of its own outside numbers from results.json; and no hidden count leaks.
 
 import { execFileSync } from 'node:child_process';
-import { existsSync, mkdtempSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import ExcelJS from 'exceljs';
@@ -18,10 +18,11 @@ import { METHOD_SOURCES } from '../../main/report/model/memo-appendix.ts';
 import { buildMemo } from '../../main/report/model/memo.ts';
 import { renderMemoDocument } from '../../main/report/memo-files.ts';
 import { readZip } from './zip-read.ts';
+import { canRun } from './poppler.ts';
 import { runFixture } from './memo-fixture.ts';
 import { allStrings, resolveSource, walk, type Walked } from './memo-walk.ts';
 
-const havePdftotext = existsSync('/usr/bin/pdftotext');
+const havePdftotext = canRun('pdftotext');
 let results: Results;
 let doc: Document;
 let walked: Walked;

@@ -4,7 +4,7 @@
 // w:pStyle "Heading1") come from ECMA-376 Part 1.
 
 import { execFileSync } from 'node:child_process';
-import { existsSync, mkdtempSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import ExcelJS from 'exceljs';
@@ -18,10 +18,11 @@ import { renderPdf } from '../../main/report/render/pdf.ts';
 import { renderXlsx, sheetNameFor } from '../../main/report/render/xlsx.ts';
 import { dosDateTime } from '../../main/report/render/zip-dates.ts';
 import { sampleDocument, type SampleDocument } from './sample-document.ts';
+import { canRun } from './poppler.ts';
 import { readZip, zipEntryDates } from './zip-read.ts';
 
-const havePdftotext = existsSync('/usr/bin/pdftotext');
-const havePdftoppm = existsSync('/usr/bin/pdftoppm');
+const havePdftotext = canRun('pdftotext');
+const havePdftoppm = canRun('pdftoppm');
 
 let sample: SampleDocument;
 let doc: Document;
