@@ -5,9 +5,8 @@
 import type { GlossaryEntry, Section, TableRow } from './document.ts';
 import type { MemoContext } from './memo-context.ts';
 import { COUNT, DELTA, upperFirst } from './memo-format.ts';
-import { scrubSmallCounts } from './memo-scrub.ts';
+import { shareableText } from './memo-scrub.ts';
 import { numCell, stateCell, text, textCell } from './memo-source.ts';
-import { suppressionLegend } from './suppress.ts';
 
 /** Published sources of the methods the memo reports (docs/method.md). */
 export const METHOD_SOURCES: readonly string[] = [
@@ -60,8 +59,7 @@ function settingsRows(ctx: MemoContext): TableRow[] {
 
 export function appendixSection(ctx: MemoContext): Section {
   const { r, ledger } = ctx;
-  const legend = suppressionLegend(ledger.threshold);
-  const warnings = r.warnings.map((w) => [text(`${w.code}: `, 'bold'), text(scrubSmallCounts(w.message, ledger.threshold, legend.smallMark, [ctx.words.one, ctx.words.many]))]);
+  const warnings = r.warnings.map((w) => [text(`${w.code}: `, 'bold'), text(shareableText(w.message, ledger.threshold, [ctx.words.one, ctx.words.many]))]);
   const provenance = [
     [text(`Software: Fenceline ${r.version}. Data: ${r.study.dataFile}${r.study.sheet ? `, sheet “${r.study.sheet}”` : ''}, SHA-256 ${r.study.dataSha256}.`)],
     ...r.study.joins.map((j) => [text(`Joined: ${j.source}, SHA-256 ${j.sha256}.`)]),
@@ -104,7 +102,7 @@ export function appendixSection(ctx: MemoContext): Section {
         id: 'appendix-warnings',
         heading: 'Warnings',
         blocks: warnings.length
-          ? [{ kind: 'paragraph', runs: [text('Every warning of the run, as recorded in results.json (small counts in them hidden):')] }, { kind: 'list', items: warnings }]
+          ? [{ kind: 'paragraph', runs: [text('Every warning of the run, in words (results.json, the analyst’s own file, keeps the counts; counts, rows and examples are left out here):')] }, { kind: 'list', items: warnings }]
           : [{ kind: 'paragraph', runs: [text('The run recorded no warnings.')] }],
       },
     ],
