@@ -10,7 +10,7 @@ import { join } from 'node:path';
 import ExcelJS from 'exceljs';
 import { beforeAll, describe, expect, it } from 'vitest';
 import type { Document, Table } from '../../main/report/model/document.ts';
-import { cellText, checkDocument, tables } from '../../main/report/model/format.ts';
+import { cellText, checkDocument, flattenSections, tables } from '../../main/report/model/format.ts';
 import { renderDocx } from '../../main/report/render/docx.ts';
 import { renderFigures } from '../../main/report/render/figures.ts';
 import { renderHtml } from '../../main/report/render/html.ts';
@@ -41,7 +41,7 @@ beforeAll(async () => {
   [pdf, html, docx, xlsx] = await Promise.all([renderPdf(doc, opts), renderHtml(doc, opts), renderDocx(doc, opts), renderXlsx(doc, opts)]);
   dir = mkdtempSync(join(tmpdir(), 'fenceline-memo-'));
   writeFileSync(join(dir, 'memo.pdf'), pdf);
-});
+}, 60_000);
 
 const mark = (reason: 'small' | 'derived') => (reason === 'small' ? doc.suppression.smallMark : doc.suppression.derivedMark);
 const table = (id: string): Table => tables(doc).find((t) => t.id === id)!;
@@ -114,6 +114,28 @@ describe('PDF', () => {
   });
   it('is the same bytes for the same document', async () => {
     expect((await renderPdf(doc, { figures })).equals(pdf)).toBe(true);
+  });
+  it.runIf(canRun('pdfinfo'))('is a tagged PDF with a language, a displayed title and a structure tree (ISO 32000-1 §14.8)', () => {
+    const info = execFileSync('/usr/bin/pdfinfo', [join(dir, 'memo.pdf')], { encoding: 'utf8' });
+    expect(info).toMatch(/Tagged:\s+yes/);
+    expect(info.split('\n').find((x) => x.startsWith('Title:'))!.replace(/^Title:\s+/, '')).toBe(doc.title.title);
+    const raw = pdf.toString('latin1');
+    expect(raw).toMatch(/\/StructTreeRoot/);
+    expect(raw).toMatch(/\/MarkInfo/);
+    expect(raw).toMatch(/\/Lang \(en\)/);
+    expect(raw).toMatch(/\/DisplayDocTitle true/);
+    for (const type of ['Document', 'Sect', 'H1', 'H2', 'P', 'L', 'LI', 'Table', 'TR', 'TH', 'TD', 'Figure']) expect(raw, type).toMatch(new RegExp(`/S /${type}\\b`));
+    // Every figure's alternative text is in the structure tree.
+    const fig = doc.sections.flatMap(function all(s): Array<{ kind: string; alt?: string }> { return [...s.blocks, ...(s.sections ?? []).flatMap(all)]; }).find((b) => b.kind === 'figure')!;
+    expect(raw).toContain(`/Alt (${fig.alt!.slice(0, 20)}`);
+  });
+  it.runIf(havePdftotext)('never leaves a heading alone at the foot of a page', () => {
+    const out = execFileSync('/usr/bin/pdftotext', [join(dir, 'memo.pdf'), '-'], { encoding: 'utf8' });
+    const headings = new Set(flattenSections(doc).map(({ section }) => section.heading));
+    out.split('\f').forEach((page, i) => {
+      const lines = page.split('\n').map((x) => x.trim()).filter((x) => x && !/^Page \d+ of \d+$/.test(x) && x !== doc.title.title);
+      expect(headings.has(lines.at(-1) ?? ''), `page ${i + 1} ends with the heading "${lines.at(-1)}"`).toBe(false);
+    });
   });
 });
 
