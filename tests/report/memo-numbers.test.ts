@@ -119,6 +119,11 @@ describe('the rendered files print the same numbers', () => {
     const text = squash(pdfText);
     for (const n of walked.numbers.filter((x) => !x.where.includes(' row '))) expect(text, n.where).toContain(formatNumber(n.value, n.format));
   });
+  it('says which files hold unit-level data and are not for sharing', () => {
+    const all = walked.texts.map((x) => x.text).join(' ');
+    expect(all).toMatch(/results\.json, units\.csv and the app’s Evidence screen hold unit-level data/);
+    expect(all).not.toMatch(/results\.json[^.]*(safe|may be shared|can be shared)/i);
+  });
   it('DOCX: every number run and cell, as formatted', () => {
     const xml = readZip(files.get('memo.docx') as Buffer).get('word/document.xml')!.toString('utf8');
     const paras = xml.split('</w:p>').map((p) => unescape([...p.matchAll(/<w:t[^>]*>([^<]*)<\/w:t>/g)].map((m) => m[1]).join('')));

@@ -129,6 +129,23 @@ describe('PDF', () => {
     const fig = doc.sections.flatMap(function all(s): Array<{ kind: string; alt?: string }> { return [...s.blocks, ...(s.sections ?? []).flatMap(all)]; }).find((b) => b.kind === 'figure')!;
     expect(raw).toContain(`/Alt (${fig.alt!.slice(0, 20)}`);
   });
+  it.runIf(havePdftotext)('splits no table header inside a word and wraps no number, even in a table too wide for the page', async () => {
+    const headers = ['Limit', 'Change', 'Switching', 'Outside', 'Receiving', 'Total (USD)', 'From', 'To', 'Supported', 'Adjusted p-value'];
+    const wide: Table = {
+      kind: 'table', id: 'wide', caption: 'A table wider than the page',
+      columns: headers.map((h, i) => ({ header: h, align: i === 0 ? 'left' : 'right', ...(i === 0 ? { width: 0.6 } : {}) })),
+      rows: Array.from({ length: 6 }, (_, r) => ({ cells: headers.map((_, i) => (i === 0
+        ? { kind: 'text' as const, text: `Limit on income for households of size ${r + 1} in the northern district` }
+        : { kind: 'number' as const, value: -14199.35 * (r + 1) * i, format: { style: 'decimal' as const, decimals: 2 } })) })),
+    };
+    const d: Document = { ...doc, sections: [{ id: 'w', heading: 'Wide', blocks: [wide] }] };
+    const wdir = mkdtempSync(join(tmpdir(), 'fenceline-wide-'));
+    writeFileSync(join(wdir, 'memo.pdf'), await renderPdf(d, { figures: new Map() }));
+    const out = execFileSync('/usr/bin/pdftotext', [join(wdir, 'memo.pdf'), '-'], { encoding: 'utf8' });
+    const tokens = new Set(out.split(/\s+/));
+    for (const h of headers) for (const w of h.split(' ')) expect(tokens.has(w), `header word "${w}"`).toBe(true);
+    for (const row of wide.rows) row.cells.forEach((c, j) => { if (c.kind === 'number') expect(tokens.has(cellText(c, wide.columns[j]!, d.suppression)), `number in column ${j}`).toBe(true); });
+  });
   it.runIf(havePdftotext)('never leaves a heading alone at the foot of a page', () => {
     const out = execFileSync('/usr/bin/pdftotext', [join(dir, 'memo.pdf'), '-'], { encoding: 'utf8' });
     const headings = new Set(flattenSections(doc).map(({ section }) => section.heading));
@@ -179,6 +196,12 @@ describe('DOCX', () => {
 });
 
 describe('HTML', () => {
+  it('puts every table in a labelled box that scrolls sideways on a narrow screen (WCAG 2.1, 1.4.10)', () => {
+    const n = tables(doc).length;
+    expect([...html.matchAll(/<div class="table-wrap" role="region" tabindex="0" aria-label="[^"]+"><table id=/g)].length).toBe(n);
+    expect(html).toMatch(/\.table-wrap \{[^}]*overflow-x: auto/);
+    expect(html).toMatch(/@media \(max-width: [\d.]+rem\)/);
+  });
   it('is one self-contained file: no network references, no scripts, images as data: URIs', () => {
     const refs = [...html.matchAll(/\b(?:src|href)\s*=\s*["']([^"']*)["']/gi)].map((m) => m[1]!);
     expect(refs.length).toBeGreaterThan(0);

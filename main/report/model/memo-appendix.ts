@@ -154,7 +154,7 @@ export function glossarySection(ctx: MemoContext): Section {
     blocks: [{
       kind: 'glossary',
       entries: [
-        e('95% interval', 'A range computed by a method that, over many repetitions of the study, would contain the true effect 95 times in 100. It is not a 95% chance that this particular range holds the effect. If it includes zero, the data are consistent with no effect (Neyman 1937).'),
+        e('95% interval', 'A range computed by a method that, over many repetitions of the study, would contain the true effect in 95% of repetitions. It does not mean a 95% chance that this particular range holds the effect. If it includes zero, the data are consistent with no effect (Neyman 1937).'),
         e('Near the edge (boundary units)', `${upperFirst(many)} whose inputs are so close to a limit of the rule that a small difference would change the verdict: those with an offer probability strictly between zero and one at a given delta.`),
         e('Delta', `The radius of the small neighbourhood around each ${one}’s inputs, in scaled units. Larger deltas count more ${many} as near the edge.`),
         e('Scaled units', 'Each continuous input divided by its scale (listed in the appendix), so that distances along different inputs can be compared.'),
