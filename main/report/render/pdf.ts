@@ -480,6 +480,11 @@ function leadHeight(l: Layout, b: Block | undefined): number {
     case 'keyFinding': return boxHeight(l, [{ kind: 'title', text: b.title }, ...b.body], l.width - 20) + 28;
     case 'note': return Math.min(220, boxHeight(l, [{ kind: 'title', text: b.title ?? '' }, ...b.body], l.width - 24) + 28);
     case 'paragraph': return Math.min(measureRuns(l, b.runs, l.width, { size: BODY_SIZE }), BODY_SIZE * 3.2) + PARA_GAP;
+    case 'list': {
+      // A short list is kept whole (see list()), so the heading must keep with all of it.
+      const whole = b.items.reduce((h, item) => h + measureRuns(l, item, l.width - 20, { size: BODY_SIZE }) + 2, 0);
+      return whole < (l.pdf.page.height - MARGIN.top - MARGIN.bottom) / 3 ? whole : BODY_SIZE * 3.2;
+    }
     default: return BODY_SIZE * 3.2;
   }
 }
