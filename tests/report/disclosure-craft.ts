@@ -24,7 +24,7 @@ export function craftSmallCells(base: Results, seed: number): Results {
 
   const used = 2000 + g.int(0, 2000);
   r.study.rowsUsed = used;
-  r.study.rowsExcluded = Array.from({ length: g.int(0, 4) }, (_, i) => ({ reason: `reason ${i + 1}`, count: some(), rows: [] }));
+  r.study.rowsExcluded = Array.from({ length: g.int(0, 4) }, (_, i) => ({ reason: `column ${String.fromCharCode(65 + i)} is blank`, count: some(), rows: [] }));
   r.study.rowsRead = used + r.study.rowsExcluded.reduce((s, e) => s + e.count, 0);
   if (r.fidelity) {
     const offeredAgainst = small();
