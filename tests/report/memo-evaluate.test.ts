@@ -4,7 +4,7 @@
 // a page that is not blank), a separate ZIP reader opens the DOCX, exceljs opens the workbook.
 
 import { execFileSync } from 'node:child_process';
-import { existsSync, mkdtempSync, readdirSync, readFileSync } from 'node:fs';
+import { mkdtempSync, readdirSync, readFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import ExcelJS from 'exceljs';
@@ -12,6 +12,7 @@ import { describe, expect, it } from 'vitest';
 import { AVAILABLE_MEMO_FORMATS, evaluateStudy } from '../../main/api/evaluate.ts';
 import type { ProgressEvent } from '../../main/contract/api.ts';
 import { readZip } from './zip-read.ts';
+import { canRun } from './poppler.ts';
 import { writeFixture } from './memo-fixture.ts';
 
 describe('evaluate with memo formats', () => {
@@ -28,12 +29,12 @@ describe('evaluate with memo formats', () => {
 
     const pdf = readFileSync(join(out, 'memo.pdf'));
     expect(pdf.subarray(0, 5).toString('latin1')).toBe('%PDF-');
-    if (existsSync('/usr/bin/pdfinfo')) {
+    if (canRun('pdfinfo')) {
       const pages = Number(/Pages:\s+(\d+)/.exec(execFileSync('/usr/bin/pdfinfo', [join(out, 'memo.pdf')], { encoding: 'utf8' }))![1]);
       expect(pages).toBeGreaterThanOrEqual(8);
       expect(pages).toBeLessThanOrEqual(40);
     }
-    if (existsSync('/usr/bin/pdftoppm')) {
+    if (canRun('pdftoppm')) {
       const pgm = execFileSync('/usr/bin/pdftoppm', ['-r', '20', '-gray', '-f', '1', '-l', '1', join(out, 'memo.pdf')]);
       const header = pgm.subarray(0, 20).toString('latin1').split(/\s+/);
       const [w, h] = [Number(header[1]), Number(header[2])];

@@ -6,7 +6,7 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import type { Results } from '../../main/contract/results.ts';
 import { boundaryMapData, densityData, niceStep, signedDistance, signedDistanceData } from '../../main/report/figure-data.ts';
 import { buildCountLedger } from '../../main/report/model/memo-counts.ts';
-import { scrubSmallCounts } from '../../main/report/model/memo-scrub.ts';
+import { shareableText } from '../../main/report/model/memo-scrub.ts';
 import { lowerValidatedProgram } from '../../main/rules/compile.ts';
 import { verdicts } from '../../main/rules/atoms.ts';
 import type { Program } from '../../main/rules/types.ts';
@@ -110,12 +110,19 @@ describe('the count ledger', () => {
   });
 });
 
-describe('small counts in free text', () => {
-  it('hides whole numbers from 1 to the threshold that count units or rows, and nothing else', () => {
-    expect(scrubSmallCounts('3 unit(s) have no cluster id; they are left out.', 10, '≤10')).toBe('≤10 unit(s) have no cluster id; they are left out.');
-    expect(scrubSmallCounts('At delta 0.1, 7 households have no score.', 10, '≤10', ['household'])).toBe('At delta 0.1, ≤10 households have no score.');
-    expect(scrubSmallCounts('12 rows were skipped; the first-stage F 8.5 is weak.', 10, '≤10')).toBe('12 rows were skipped; the first-stage F 8.5 is weak.');
-    expect(scrubSmallCounts('recorded in steps of 1 years', 10, '≤10')).toBe('recorded in steps of 1 years');
-    expect(scrubSmallCounts('3 rows', 0, '')).toBe('3 rows');
+describe('counts in free text', () => {
+  it('replaces every count with words, in the plural, and drops row numbers, examples and breakdowns', () => {
+    expect(shareableText('3 unit(s) have no cluster id; they are left out.', 10)).toBe('Some units have no cluster id; they are left out.');
+    expect(shareableText('At delta 0.1, 7 households have no score.', 10, ['household'])).toBe('At delta 0.1, some households have no score.');
+    // Large counts too: read against a count printed elsewhere they give a small one away.
+    expect(shareableText('12 rows were skipped; the first-stage F 8.5 is weak.', 10)).toBe('Some rows were skipped; the first-stage F 8.5 is weak.');
+    expect(shareableText('payments.xlsx: PAID_ON: 3254 dates were read as the number of days since 1970-01-01.', 10)).toBe('payments.xlsx: PAID_ON: some dates were read as the number of days since 1970-01-01.');
+    // Singular wording tells a count of one: the noun and its verb go into the plural.
+    expect(shareableText('payments.xlsx: 1 row has no APPLICANT_ID and cannot be linked to a unit (row 3102).', 10)).toBe('payments.xlsx: some rows have no APPLICANT_ID and cannot be linked to a unit.');
+    expect(shareableText('INCOME: 1 number written as text (such as "$27,450") was read as a number.', 10)).toBe('INCOME: some numbers written as text were read as a number.');
+    expect(shareableText('Outcome Y is missing for 1 of the 15994 units used (1: Y is blank); they are left out of that outcome only (rows 9105).', 10))
+      .toBe('Outcome Y is missing for some of the units used; they are left out of that outcome only.');
+    expect(shareableText('recorded in steps of 1 years', 10)).toBe('recorded in steps of 1 years');
+    expect(shareableText('3 rows (rows 4, 9, 12)', 0)).toBe('3 rows (rows 4, 9, 12)');
   });
 });

@@ -5,7 +5,7 @@
 // memo writes no digit of its own outside numbers from results.json; and no hidden count leaks.
 
 import { execFileSync } from 'node:child_process';
-import { existsSync, mkdtempSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import ExcelJS from 'exceljs';
@@ -18,10 +18,11 @@ import { METHOD_SOURCES } from '../../main/report/model/memo-appendix.ts';
 import { buildMemo } from '../../main/report/model/memo.ts';
 import { renderMemoDocument } from '../../main/report/memo-files.ts';
 import { readZip } from './zip-read.ts';
+import { canRun } from './poppler.ts';
 import { runFixture } from './memo-fixture.ts';
 import { allStrings, resolveSource, walk, type Walked } from './memo-walk.ts';
 
-const havePdftotext = existsSync('/usr/bin/pdftotext');
+const havePdftotext = canRun('pdftotext');
 let results: Results;
 let doc: Document;
 let walked: Walked;
@@ -117,6 +118,11 @@ describe('the rendered files print the same numbers', () => {
   it.runIf(havePdftotext)('PDF: every number run, as formatted', () => {
     const text = squash(pdfText);
     for (const n of walked.numbers.filter((x) => !x.where.includes(' row '))) expect(text, n.where).toContain(formatNumber(n.value, n.format));
+  });
+  it('says which files hold unit-level data and are not for sharing', () => {
+    const all = walked.texts.map((x) => x.text).join(' ');
+    expect(all).toMatch(/results\.json, units\.csv and the app’s Evidence screen hold unit-level data/);
+    expect(all).not.toMatch(/results\.json[^.]*(safe|may be shared|can be shared)/i);
   });
   it('DOCX: every number run and cell, as formatted', () => {
     const xml = readZip(files.get('memo.docx') as Buffer).get('word/document.xml')!.toString('utf8');

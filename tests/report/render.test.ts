@@ -4,13 +4,13 @@
 // w:pStyle "Heading1") come from ECMA-376 Part 1.
 
 import { execFileSync } from 'node:child_process';
-import { existsSync, mkdtempSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import ExcelJS from 'exceljs';
 import { beforeAll, describe, expect, it } from 'vitest';
 import type { Document, Table } from '../../main/report/model/document.ts';
-import { cellText, checkDocument, tables } from '../../main/report/model/format.ts';
+import { cellText, checkDocument, flattenSections, tables } from '../../main/report/model/format.ts';
 import { renderDocx } from '../../main/report/render/docx.ts';
 import { renderFigures } from '../../main/report/render/figures.ts';
 import { renderHtml } from '../../main/report/render/html.ts';
@@ -18,10 +18,11 @@ import { renderPdf } from '../../main/report/render/pdf.ts';
 import { renderXlsx, sheetNameFor } from '../../main/report/render/xlsx.ts';
 import { dosDateTime } from '../../main/report/render/zip-dates.ts';
 import { sampleDocument, type SampleDocument } from './sample-document.ts';
+import { canRun } from './poppler.ts';
 import { readZip, zipEntryDates } from './zip-read.ts';
 
-const havePdftotext = existsSync('/usr/bin/pdftotext');
-const havePdftoppm = existsSync('/usr/bin/pdftoppm');
+const havePdftotext = canRun('pdftotext');
+const havePdftoppm = canRun('pdftoppm');
 
 let sample: SampleDocument;
 let doc: Document;
@@ -40,7 +41,7 @@ beforeAll(async () => {
   [pdf, html, docx, xlsx] = await Promise.all([renderPdf(doc, opts), renderHtml(doc, opts), renderDocx(doc, opts), renderXlsx(doc, opts)]);
   dir = mkdtempSync(join(tmpdir(), 'fenceline-memo-'));
   writeFileSync(join(dir, 'memo.pdf'), pdf);
-});
+}, 60_000);
 
 const mark = (reason: 'small' | 'derived') => (reason === 'small' ? doc.suppression.smallMark : doc.suppression.derivedMark);
 const table = (id: string): Table => tables(doc).find((t) => t.id === id)!;
@@ -114,6 +115,45 @@ describe('PDF', () => {
   it('is the same bytes for the same document', async () => {
     expect((await renderPdf(doc, { figures })).equals(pdf)).toBe(true);
   });
+  it.runIf(canRun('pdfinfo'))('is a tagged PDF with a language, a displayed title and a structure tree (ISO 32000-1 §14.8)', () => {
+    const info = execFileSync('/usr/bin/pdfinfo', [join(dir, 'memo.pdf')], { encoding: 'utf8' });
+    expect(info).toMatch(/Tagged:\s+yes/);
+    expect(info.split('\n').find((x) => x.startsWith('Title:'))!.replace(/^Title:\s+/, '')).toBe(doc.title.title);
+    const raw = pdf.toString('latin1');
+    expect(raw).toMatch(/\/StructTreeRoot/);
+    expect(raw).toMatch(/\/MarkInfo/);
+    expect(raw).toMatch(/\/Lang \(en\)/);
+    expect(raw).toMatch(/\/DisplayDocTitle true/);
+    for (const type of ['Document', 'Sect', 'H1', 'H2', 'P', 'L', 'LI', 'Table', 'TR', 'TH', 'TD', 'Figure']) expect(raw, type).toMatch(new RegExp(`/S /${type}\\b`));
+    // Every figure's alternative text is in the structure tree.
+    const fig = doc.sections.flatMap(function all(s): Array<{ kind: string; alt?: string }> { return [...s.blocks, ...(s.sections ?? []).flatMap(all)]; }).find((b) => b.kind === 'figure')!;
+    expect(raw).toContain(`/Alt (${fig.alt!.slice(0, 20)}`);
+  });
+  it.runIf(havePdftotext)('splits no table header inside a word and wraps no number, even in a table too wide for the page', async () => {
+    const headers = ['Limit', 'Change', 'Switching', 'Outside', 'Receiving', 'Total (USD)', 'From', 'To', 'Supported', 'Adjusted p-value'];
+    const wide: Table = {
+      kind: 'table', id: 'wide', caption: 'A table wider than the page',
+      columns: headers.map((h, i) => ({ header: h, align: i === 0 ? 'left' : 'right', ...(i === 0 ? { width: 0.6 } : {}) })),
+      rows: Array.from({ length: 6 }, (_, r) => ({ cells: headers.map((_, i) => (i === 0
+        ? { kind: 'text' as const, text: `Limit on income for households of size ${r + 1} in the northern district` }
+        : { kind: 'number' as const, value: -14199.35 * (r + 1) * i, format: { style: 'decimal' as const, decimals: 2 } })) })),
+    };
+    const d: Document = { ...doc, sections: [{ id: 'w', heading: 'Wide', blocks: [wide] }] };
+    const wdir = mkdtempSync(join(tmpdir(), 'fenceline-wide-'));
+    writeFileSync(join(wdir, 'memo.pdf'), await renderPdf(d, { figures: new Map() }));
+    const out = execFileSync('/usr/bin/pdftotext', [join(wdir, 'memo.pdf'), '-'], { encoding: 'utf8' });
+    const tokens = new Set(out.split(/\s+/));
+    for (const h of headers) for (const w of h.split(' ')) expect(tokens.has(w), `header word "${w}"`).toBe(true);
+    for (const row of wide.rows) row.cells.forEach((c, j) => { if (c.kind === 'number') expect(tokens.has(cellText(c, wide.columns[j]!, d.suppression)), `number in column ${j}`).toBe(true); });
+  });
+  it.runIf(havePdftotext)('never leaves a heading alone at the foot of a page', () => {
+    const out = execFileSync('/usr/bin/pdftotext', [join(dir, 'memo.pdf'), '-'], { encoding: 'utf8' });
+    const headings = new Set(flattenSections(doc).map(({ section }) => section.heading));
+    out.split('\f').forEach((page, i) => {
+      const lines = page.split('\n').map((x) => x.trim()).filter((x) => x && !/^Page \d+ of \d+$/.test(x) && x !== doc.title.title);
+      expect(headings.has(lines.at(-1) ?? ''), `page ${i + 1} ends with the heading "${lines.at(-1)}"`).toBe(false);
+    });
+  });
 });
 
 describe('DOCX', () => {
@@ -156,6 +196,12 @@ describe('DOCX', () => {
 });
 
 describe('HTML', () => {
+  it('puts every table in a labelled box that scrolls sideways on a narrow screen (WCAG 2.1, 1.4.10)', () => {
+    const n = tables(doc).length;
+    expect([...html.matchAll(/<div class="table-wrap" role="region" tabindex="0" aria-label="[^"]+"><table id=/g)].length).toBe(n);
+    expect(html).toMatch(/\.table-wrap \{[^}]*overflow-x: auto/);
+    expect(html).toMatch(/@media \(max-width: [\d.]+rem\)/);
+  });
   it('is one self-contained file: no network references, no scripts, images as data: URIs', () => {
     const refs = [...html.matchAll(/\b(?:src|href)\s*=\s*["']([^"']*)["']/gi)].map((m) => m[1]!);
     expect(refs.length).toBeGreaterThan(0);

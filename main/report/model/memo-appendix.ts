@@ -2,12 +2,12 @@
 // sources as docs/method.md —, settings, seed, software version, data hash, every warning) and
 // the glossary of the terms the memo uses.
 
-import type { GlossaryEntry, Section, TableRow } from './document.ts';
+import type { GlossaryEntry, Inline, Section, TableRow } from './document.ts';
 import type { MemoContext } from './memo-context.ts';
-import { COUNT, DELTA, upperFirst } from './memo-format.ts';
-import { scrubSmallCounts } from './memo-scrub.ts';
-import { numCell, stateCell, text, textCell } from './memo-source.ts';
-import { suppressionLegend } from './suppress.ts';
+import { COUNT, DELTA, effectOf, upperFirst } from './memo-format.ts';
+import { shareableText } from './memo-scrub.ts';
+import { constNum, num, numCell, stateCell, text, textCell } from './memo-source.ts';
+import { MEMO_CONSTANTS } from './memo-constants.ts';
 
 /** Published sources of the methods the memo reports (docs/method.md). */
 export const METHOD_SOURCES: readonly string[] = [
@@ -23,6 +23,11 @@ export const METHOD_SOURCES: readonly string[] = [
   'Holm, S. (1979). A simple sequentially rejective multiple test procedure. Scandinavian Journal of Statistics 6(2):65–70.',
   'Schenker, N. and Gentleman, J. F. (2001). On judging the significance of differences by examining the overlap between confidence intervals. The American Statistician 55(3):182–186.',
   'Li, S. (2011). Concise formulas for the area and volume of a hyperspherical cap. Asian Journal of Mathematics and Statistics 4(1):66–70.',
+  'Wasserstein, R. L. and Lazar, N. A. (2016). The ASA statement on p-values: context, process, and purpose. The American Statistician 70(2):129–133.',
+  'Neyman, J. (1937). Outline of a theory of statistical estimation based on the classical theory of probability. Philosophical Transactions of the Royal Society A 236(767):333–380.',
+  'Imbens, G. W. and Angrist, J. D. (1994). Identification and estimation of local average treatment effects. Econometrica 62(2):467–475.',
+  'Anderson, T. W. and Rubin, H. (1949). Estimation of the parameters of a single equation in a complete system of stochastic equations. Annals of Mathematical Statistics 20(1):46–63.',
+  'Cameron, A. C. and Miller, D. L. (2015). A practitioner’s guide to cluster-robust inference. Journal of Human Resources 50(2):317–372.',
   'Lee, D. S. and Card, D. (2008). Regression discontinuity inference with specification error. Journal of Econometrics 142(2):655–674.',
 ];
 
@@ -37,9 +42,38 @@ function methodBlocks(ctx: MemoContext): Section['blocks'] {
     { kind: 'paragraph', runs: [text('Weak instruments. ', 'bold'), text('The first-stage F is the squared robust t-statistic of γ₁ (rule of thumb: weak below ten, Staiger and Stock 1997). The tF interval widens the critical value as F falls (Lee, McCrary, Moreira and Porter 2022); the Anderson–Rubin set inverts the robust test of the reduced form in Y − β·D and may be unbounded (Mikusheva 2010).')] },
     { kind: 'paragraph', runs: [text('Checks. ', 'bold'), text('Balance: each covariate regressed on Z and the APS near the edge; the standardized difference divides the coefficient by √((s₁² + s₀²)/2) (Austin 2009); the joint test is a robust Wald test of all coefficients. Density: McCrary’s (2008) test of a jump in the density of value − limit at zero, log difference θ = ln f⁺ − ln f⁻. Delta sensitivity: pairs of deltas whose 95% intervals do not overlap (Schenker and Gentleman 2001). Several outcomes: Holm (1979) adjusted p-values. Compliers: Abadie’s (2003) κ-weighted means with the APS as the offer probability. Threshold changes: the offer change S times ρ₁ (outcome total) and γ₁ (receipt), supported only while every unit switched has 0 < APS < 1.')] },
     { kind: 'paragraph', runs: [text('Figures. ', 'bold'), text('The distance to the nearest edge is, for each unit, the smallest distance in scaled units to the plane of a criterion whose reversal alone would reverse the verdict, counted negative on the not-eligible side (docs/memo.md). Figures use per-unit data but print no number; counts in them are suppressed like every table.')] },
-    { kind: 'paragraph', runs: [text('Estimand. ', 'bold'), text(r.estimand.note + ' ' + r.instrument.note + (r.localLinearNote ? ' ' + r.localLinearNote : ''))] },
+    { kind: 'paragraph', runs: estimandRuns(ctx) },
     { kind: 'list', items: METHOD_SOURCES.map((s) => [text(s)]) },
   ];
+}
+
+/** The estimand in the memo's own words: the analyst's column names stay in results.json. */
+function estimandRuns(ctx: MemoContext): Inline[] {
+  const { r } = ctx;
+  const runs: Inline[] = [text('Estimand. ', 'bold')];
+  if (r.estimand.kind === 'treatment') {
+    runs.push(text(`The estimate is the effect of ${effectOf(r)} for the ${ctx.words.many} near the edge of the rule who receive it when offered and not otherwise (compliers)`));
+    if (r.estimand.treatmentPer !== 1) runs.push(text(', per '), num(r, 'estimand.treatmentPer', { style: 'decimal', decimals: 0 }), text(' of the benefit received'));
+    runs.push(text('. '));
+  } else {
+    runs.push(text('No column of who received the benefit was given, so the estimate is the effect of being offered the benefit (the reduced form); there is no first stage. '));
+  }
+  runs.push(text(r.instrument.source === 'formula'
+    ? 'The offer is the rule’s own verdict, computed from the inputs; recorded decisions that differ are reported as overrides.'
+    : 'The offer is the recorded decision.'));
+  if (r.localLinearNote) runs.push(text(' The cross-check with one running variable uses local-linear regression (Imbens and Kalyanaraman 2012).'));
+  return runs;
+}
+
+/** Which files hold unit-level data, and which are meant for others. */
+export function filesParagraph(): Section['blocks'][number] {
+  return {
+    kind: 'paragraph',
+    runs: [
+      text('Files and who may see them. ', 'bold'),
+      text('This memo (PDF, HTML, Word) and tables.xlsx are written to be shared: small counts are hidden in them. results.json, units.csv and the app’s Evidence screen hold unit-level data — row numbers, IDs, exact small counts and every unit’s inputs — and are the analyst’s own working files: do not share them with anyone not entitled to see the data.'),
+    ],
+  };
 }
 
 function settingsRows(ctx: MemoContext): TableRow[] {
@@ -60,8 +94,7 @@ function settingsRows(ctx: MemoContext): TableRow[] {
 
 export function appendixSection(ctx: MemoContext): Section {
   const { r, ledger } = ctx;
-  const legend = suppressionLegend(ledger.threshold);
-  const warnings = r.warnings.map((w) => [text(`${w.code}: `, 'bold'), text(scrubSmallCounts(w.message, ledger.threshold, legend.smallMark, [ctx.words.one, ctx.words.many]))]);
+  const warnings = r.warnings.map((w) => [text(`${w.code}: `, 'bold'), text(shareableText(w.message, ledger.threshold, [ctx.words.one, ctx.words.many]))]);
   const provenance = [
     [text(`Software: Fenceline ${r.version}. Data: ${r.study.dataFile}${r.study.sheet ? `, sheet “${r.study.sheet}”` : ''}, SHA-256 ${r.study.dataSha256}.`)],
     ...r.study.joins.map((j) => [text(`Joined: ${j.source}, SHA-256 ${j.sha256}.`)]),
@@ -78,6 +111,7 @@ export function appendixSection(ctx: MemoContext): Section {
         heading: 'Settings and provenance',
         blocks: [
           { kind: 'list', items: provenance },
+          filesParagraph(),
           { kind: 'table', id: 'settings', caption: 'Settings of this run', sheetName: 'Settings', columns: [{ header: 'Setting', align: 'left', width: 3 }, { header: 'Value', align: 'right', width: 1.2 }], rows: settingsRows(ctx) },
           {
             kind: 'table', id: 'scales', caption: 'Scale of each continuous input (one scaled unit)', sheetName: 'Scales',
@@ -104,7 +138,7 @@ export function appendixSection(ctx: MemoContext): Section {
         id: 'appendix-warnings',
         heading: 'Warnings',
         blocks: warnings.length
-          ? [{ kind: 'paragraph', runs: [text('Every warning of the run, as recorded in results.json (small counts in them hidden):')] }, { kind: 'list', items: warnings }]
+          ? [{ kind: 'paragraph', runs: [text('Every warning of the run, in words (results.json, the analyst’s own file, keeps the counts; counts, rows and examples are left out here):')] }, { kind: 'list', items: warnings }]
           : [{ kind: 'paragraph', runs: [text('The run recorded no warnings.')] }],
       },
     ],
@@ -120,23 +154,23 @@ export function glossarySection(ctx: MemoContext): Section {
     blocks: [{
       kind: 'glossary',
       entries: [
-        e('95% interval', 'The range of effects the data cannot tell apart from the estimate. If it includes zero, the result is consistent with no effect.'),
+        e('95% interval', 'A range computed by a method that, over many repetitions of the study, would contain the true effect in 95% of repetitions. It does not mean a 95% chance that this particular range holds the effect. If it includes zero, the data are consistent with no effect (Neyman 1937).'),
         e('Near the edge (boundary units)', `${upperFirst(many)} whose inputs are so close to a limit of the rule that a small difference would change the verdict: those with an offer probability strictly between zero and one at a given delta.`),
         e('Delta', `The radius of the small neighbourhood around each ${one}’s inputs, in scaled units. Larger deltas count more ${many} as near the edge.`),
         e('Scaled units', 'Each continuous input divided by its scale (listed in the appendix), so that distances along different inputs can be compared.'),
-        e('Offer probability (approximate propensity score, APS)', `The chance that the rule would offer the benefit to a ${one} whose inputs lay anywhere in the neighbourhood: the average of the rule’s offer over it.`),
-        e('Compliers', `${upperFirst(many)} who take the benefit when offered and would not take it otherwise. The estimate is the effect for compliers near the edge.`),
+        e('Offer probability (approximate propensity score, APS)', `The chance that the rule would offer the benefit to a ${one} whose inputs lay anywhere in the small neighbourhood around its own: the average of the rule’s offer over that neighbourhood (Narita and Yata 2021).`),
+        e('Compliers', `${upperFirst(many)} who take the benefit when offered and would not take it otherwise. With an offer as the instrument, the estimate is the average effect for the compliers near the edge (Imbens and Angrist 1994).`),
         e('First stage', 'How much an offer raises the share receiving the benefit.'),
-        e('F statistic', 'How clearly the first stage stands out from noise; small values make the usual interval unreliable.'),
-        e('tF interval, Anderson–Rubin set', 'Intervals for the effect that stay valid when the first stage is weak.'),
-        e('Two-stage least squares (2SLS)', 'The regression that turns the offer’s effect on the outcome into the effect of receiving the benefit, by dividing by the first stage.'),
+        { term: 'F statistic', definition: [text('How clearly the first stage stands out from noise: the square of its t-statistic. Below '), constNum('WEAK_F', MEMO_CONSTANTS.WEAK_F, COUNT), text(' the offer is called a weak instrument and the usual interval can be misleading (Staiger and Stock 1997).')] },
+        e('tF interval, Anderson–Rubin set', 'Intervals for the effect that stay valid when the first stage is weak: the tF interval widens the usual one as F falls (Lee, McCrary, Moreira and Porter 2022); the Anderson–Rubin set tests each possible effect directly and may be unbounded (Anderson and Rubin 1949).'),
+        e('Two-stage least squares (2SLS)', 'The regression that turns the offer’s effect on the outcome into the effect of receiving the benefit: with one offer, the offer’s effect on the outcome divided by its effect on receiving the benefit (the first stage).'),
         e('Naive comparison', `The difference in the outcome between all ${many} who received the benefit and all who did not, with no adjustment.`),
         e('Selection', `Differences between the ${many} who receive a benefit and those who do not that would exist without it.`),
-        e('Standardized difference', 'A difference between two groups divided by the typical spread of the characteristic.'),
-        e('p-value', 'How often chance alone would give a result at least this far from none; small values mean chance is an unlikely explanation.'),
-        e('Density test', 'A check for more units just on one side of a limit than just on the other.'),
+        e('Standardized difference', 'The difference in a characteristic’s average between two groups, divided by the pooled standard deviation of that characteristic (Austin 2009).'),
+        e('p-value', 'The probability, if there were no effect and the statistical model’s assumptions held, of a result at least as far from no effect as the one observed. A small p-value says the data would be unusual if there were no effect. It is not the probability that chance alone produced the result, nor the probability that there is no effect, and it does not measure how large or important the effect is (Wasserstein and Lazar 2016).'),
+        e('Density test', `A check for more ${many} just on one side of a limit than just on the other, as there would be if values were adjusted to meet it (McCrary 2008).`),
         e('Overrides', 'Recorded decisions that differ from what the formula says.'),
-        e('HC1, CR1', 'Ways of computing standard errors that allow for unequal variances (HC1) or for correlated units within a cluster (CR1).'),
+        e('HC1, CR1', 'Ways of computing standard errors that allow for unequal variances (HC1; MacKinnon and White 1985) or for correlated units within a cluster (CR1; Cameron and Miller 2015).'),
         e('Small-cell suppression', 'Counts small enough to identify people are hidden, and so is anything from which they could be worked out.'),
       ],
     }],

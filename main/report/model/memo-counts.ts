@@ -101,16 +101,55 @@ export function buildCountLedger(results: Results): CountLedger {
     });
   });
 
+  // Nested samples (docs/method.md, "Disclosure control"): a ball of a larger radius crosses every
+  // criterion a smaller one crosses, so the units near the edge at a smaller delta are among those
+  // at the next larger one, and so are their offered and not-offered units, those with the outcome,
+  // and those straddling each criterion; units whose offer probability is constant go the other way.
+  // The difference between two such counts is itself a count of units a reader can compute; it goes
+  // into the ledger as a member never printed, like the gaps above. Where simulated offer
+  // probabilities break the nesting the difference can be negative; gap() then adds nothing.
+  const order = results.design.byDelta.map((d, k) => ({ d: d.delta, k })).sort((a, b) => a.d - b.d).map((x) => x.k);
+  const nest = (path: (k: number) => string | null, reverse = false) => {
+    for (let j = 0; j + 1 < order.length; j++) {
+      const [small, large] = reverse ? [order[j + 1]!, order[j]!] : [order[j]!, order[j + 1]!];
+      const a = path(small);
+      const b = path(large);
+      if (a === null || b === null || !index.has(a) || !index.has(b)) continue;
+      gap(`nested:${b} - ${a}`, index.get(b)!, [index.get(a)!]);
+    }
+  };
+  nest((k) => `design.byDelta[${k}].boundary`);
+  nest((k) => `design.byDelta[${k}].constant`, true);
+  results.design.composition[0]?.atoms.forEach((_, j) => nest((k) => `design.composition[${k}].atoms[${j}].straddling`));
+  results.outcomes.forEach((_, i) => {
+    for (const field of ['n', 'offered', 'notOffered']) nest((k) => `outcomes[${i}].byDelta[${k}].${field}`);
+  });
+
   results.outcomes.forEach((o, i) => {
     const missing = add(`outcomes[${i}].missing`, o.missing);
     const naive = add(`outcomes[${i}].naiveOls.n`, o.naiveOls.n);
     relate([naive, missing], used);
   });
 
-  results.thresholdChanges?.scenarios.forEach((sc, i) => {
+  const scenarios = results.thresholdChanges?.scenarios ?? [];
+  scenarios.forEach((sc, i) => {
     const sw = add(`thresholdChanges.scenarios[${i}].switchers`, sc.switchers);
     const outside = add(`thresholdChanges.scenarios[${i}].switchersOutsideBand`, sc.switchersOutsideBand);
     gap(`thresholdChanges.scenarios[${i}].switchersInsideBand`, sw, [outside]);
+  });
+  // Moving one limit further in the same direction switches every unit a smaller move switches
+  // (and those of them outside the band): nested again, so their differences are counts too.
+  scenarios.forEach((sc, i) => {
+    const next = scenarios
+      .map((x, j) => ({ x, j }))
+      .filter(({ x }) => x.path === sc.path && Math.sign(x.relativeChange) === Math.sign(sc.relativeChange) && Math.abs(x.relativeChange) > Math.abs(sc.relativeChange))
+      .sort((a, b) => Math.abs(a.x.relativeChange) - Math.abs(b.x.relativeChange))[0];
+    if (!next) return;
+    for (const field of ['switchers', 'switchersOutsideBand']) {
+      const a = `thresholdChanges.scenarios[${i}].${field}`;
+      const b = `thresholdChanges.scenarios[${next.j}].${field}`;
+      gap(`nested:${b} - ${a}`, index.get(b)!, [index.get(a)!]);
+    }
   });
 
   const states = suppressCounts(entries.map((e) => e.value), relations, threshold);

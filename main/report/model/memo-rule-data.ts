@@ -5,9 +5,8 @@
 import type { Cell, Inline, Section, Table, TableRow } from './document.ts';
 import type { MemoContext } from './memo-context.ts';
 import { COUNT, PERCENT, outcomeName, upperFirst, lowerFirst } from './memo-format.ts';
-import { scrubSmallCounts } from './memo-scrub.ts';
+import { shareableText } from './memo-scrub.ts';
 import { numberAt, stateCell, stateRun, text, textCell } from './memo-source.ts';
-import { suppressionLegend } from './suppress.ts';
 
 export function ruleSection(ctx: MemoContext): Section {
   const { r } = ctx;
@@ -117,10 +116,9 @@ export function dataSection(ctx: MemoContext): Section {
       ] })),
     });
   }
-  const legend = suppressionLegend(ledger.threshold);
   if (s.notes.length) {
     blocks.push({ kind: 'paragraph', runs: [text('Notes from reading the file:')] });
-    blocks.push({ kind: 'list', items: s.notes.map((n) => [text(scrubSmallCounts(n.message, ledger.threshold, legend.smallMark, [ctx.words.one, many]))]) });
+    blocks.push({ kind: 'list', items: s.notes.map((n) => [text(shareableText(n.message, ledger.threshold, [ctx.words.one, many]))]) });
   }
   r.outcomes.forEach((o, i) => {
     if (o.missing > 0) {

@@ -6,7 +6,7 @@
 
 import type { Results } from '../../contract/results.ts';
 import { writeCaveats } from '../caveats/index.ts';
-import { DOCUMENT_FORMAT, type Document } from './document.ts';
+import { DOCUMENT_FORMAT, type Block, type Document, type Section } from './document.ts';
 import type { FigureData } from './figure-types.ts';
 import { appendixSection, glossarySection } from './memo-appendix.ts';
 import { checksSection } from './memo-checks.ts';
@@ -35,6 +35,45 @@ export function longDate(iso: string): string {
   return `${d.getUTCDate()} ${MONTHS[d.getUTCMonth()]} ${d.getUTCFullYear()}`;
 }
 
+/** Blocks of the checks that go to the appendix: every figure and the per-characteristic balance table. */
+const CHECK_DETAIL = (b: Block): boolean => b.kind === 'figure' || (b.kind === 'table' && b.id === 'balance');
+
+/**
+ * The memo's order for a reader with little time (issue 10 §6): a one-page summary (the key finding,
+ * the design in a sentence, the main caveat), then the body — rule, data, who, results, checks with
+ * their verdicts and compact tables, limits, cautions — on a new page, then the technical appendix,
+ * which also receives the checks' figures and long tables ("Details of the checks"), then the
+ * glossary. Each check that lost a block to the appendix says where it went.
+ */
+function arrange(parts: { summary: Section; body: Section[]; appendix: Section; glossary: Section }): Section[] {
+  const details: Section[] = [];
+  const body = parts.body.map((sec, i) => {
+    // The body starts on a new page after the summary and then runs on: a section that asked for a
+    // page of its own would leave the page before it half empty.
+    const out: Section = { ...sec, pageBreakBefore: i === 0 };
+    if (sec.id !== 'checks') return out;
+    return {
+      ...out,
+      sections: (sec.sections ?? []).map((sub): Section => {
+        const moved = sub.blocks.filter(CHECK_DETAIL);
+        if (!moved.length) return sub;
+        details.push({ id: `details-${sub.id}`, heading: sub.heading, blocks: moved });
+        return {
+          ...sub,
+          blocks: [
+            ...sub.blocks.filter((b) => !CHECK_DETAIL(b)),
+            { kind: 'paragraph', runs: [{ kind: 'text' as const, text: `The ${moved.some((b) => b.kind === 'figure') ? 'figures and details' : 'details'} of this check are in the appendix (“Details of the checks”).`, style: 'italic' as const }] },
+          ],
+        };
+      }),
+    };
+  });
+  const appendix: Section = details.length
+    ? { ...parts.appendix, sections: [...(parts.appendix.sections ?? []), { id: 'appendix-checks', heading: 'Details of the checks', blocks: [], sections: details }] }
+    : parts.appendix;
+  return [parts.summary, ...body, appendix, parts.glossary];
+}
+
 export function buildMemo(results: Results, figures: FigureData, opts: MemoOptions): Document {
   const ledger = buildCountLedger(results);
   const ctx: MemoContext = { r: results, ledger, headline: headlineIndex(results), figures, words: unitWords(results) };
@@ -56,18 +95,12 @@ export function buildMemo(results: Results, figures: FigureData, opts: MemoOptio
       language: 'en',
     },
     suppression: suppressionLegend(results.settings.smallCellMax),
-    sections: [
-      keyFindingSection(ctx, caveats),
-      ruleSection(ctx),
-      dataSection(ctx),
-      whoSection(ctx),
-      resultsSection(ctx),
-      checksSection(ctx),
-      limitsSection(ctx, caveats),
-      cautionsSection(ctx),
-      appendixSection(ctx),
-      glossarySection(ctx),
-    ],
+    sections: arrange({
+      summary: keyFindingSection(ctx, caveats),
+      body: [ruleSection(ctx), dataSection(ctx), whoSection(ctx), resultsSection(ctx), checksSection(ctx), limitsSection(ctx, caveats), cautionsSection(ctx)],
+      appendix: appendixSection(ctx),
+      glossary: glossarySection(ctx),
+    }),
     footnotes: [],
   };
 }

@@ -40,6 +40,14 @@ figure img { width: 100%; height: auto; border: 1px solid #e0e0e0; }
 figcaption, caption { font-size: .92rem; text-align: left; margin: .35rem 0; }
 .label { font-weight: bold; }
 table { border-collapse: collapse; width: 100%; margin: .6rem 0 .3rem; font-size: .92rem; }
+.table-wrap { max-width: 100%; overflow-x: auto; }
+.table-wrap:focus { outline: 2px solid var(--key-edge); outline-offset: 2px; }
+thead th { overflow-wrap: normal; word-break: normal; hyphens: manual; }
+@media (max-width: 40rem) {
+  body { padding: 1rem .6rem 3rem; }
+  table { font-size: .8rem; }
+  th, td { padding: .2rem .3rem; }
+}
 th, td { padding: .25rem .5rem; border-bottom: 1px solid #e3e3e3; vertical-align: top; }
 thead th { border-bottom: 2px solid var(--ink); text-align: left; }
 tbody th { font-weight: normal; }
@@ -115,13 +123,16 @@ function table(ctx: Ctx, t: Table): string {
     ...(t.notes ?? []).map((n) => `<p>${runs(ctx, n)}</p>`),
     ...tableLegend(t, ctx.doc.suppression).map((l) => `<p>${escapeHtml(l)}</p>`),
   ];
-  return `<table id="${escapeHtml(t.id)}">
+  // On a narrow screen a wide table scrolls inside its own box instead of widening the page; the box
+  // is a labelled region that takes keyboard focus so it can be scrolled without a mouse (WCAG 2.1,
+  // success criteria 1.4.10 Reflow and 2.1.1 Keyboard).
+  return `<div class="table-wrap" role="region" tabindex="0" aria-label="${escapeHtml(`${label}. ${t.caption}`)}"><table id="${escapeHtml(t.id)}">
 <caption><span class="label">${escapeHtml(label)}.</span> ${escapeHtml(t.caption)}</caption>
 <thead><tr>${head}</tr></thead>
 <tbody>
 ${body}
 </tbody>
-</table>
+</table></div>
 ${notes.length ? `<div class="table-notes">${notes.join('')}</div>` : ''}`;
 }
 

@@ -54,8 +54,12 @@ function fontFor(style: TextStyle | undefined, condensed = false): FontKey {
   }
 }
 
+type Struct = ReturnType<Pdf['struct']>;
+
 interface Layout {
   pdf: Pdf;
+  /** The structure element new content goes into (tagged PDF, ISO 32000-1 §14.8). */
+  parent: Struct;
   /** A second document on a very tall page, used only to measure how tall text will be. */
   scratch: Pdf;
   doc: Document;
@@ -64,6 +68,33 @@ interface Layout {
   pngs: Map<string, Buffer>;
   left: number;
   width: number;
+}
+
+// Tagged PDF (ISO 32000-1 §14.8; pdfkit's structure support): every piece of text and every figure is
+// marked content inside a structure element (Sect, H1–H4, P, L/LI/Lbl/LBody, Table/TR/TH/TD, Figure
+// with its alternative text); rules, fills, repeated table headers and page footers are artifacts.
+
+/** Draw inside a new structure element of this type (its content marked as belonging to it). */
+function tag(l: Layout, type: string, draw: () => void, options: { alt?: string } = {}): void {
+  // Elements are ended all at once by the root at the end (ending each as it is written makes pdfkit
+  // re-check the whole tree every time).
+  l.parent.add(l.pdf.struct(type, options, [draw]));
+}
+
+/** A structure element that holds other elements (a section, a list, a table, a row). */
+function group(l: Layout, type: string, body: () => void): void {
+  const el = l.pdf.struct(type);
+  l.parent.add(el);
+  const prev = l.parent;
+  l.parent = el;
+  try { body(); } finally { l.parent = prev; }
+}
+
+/** Decoration that is not part of the content (rules, fills, footers, repeated headers). */
+function artifact(l: Layout, draw: () => void, type?: 'Pagination' | 'Layout'): void {
+  l.pdf.markContent('Artifact', type ? { type } : undefined);
+  draw();
+  l.pdf.endMarkedContent();
 }
 
 const bottom = (l: Layout) => l.pdf.page.height - MARGIN.bottom;
@@ -112,31 +143,43 @@ const plain = (text: string, style?: TextStyle): Inline => (style ? { kind: 'tex
 
 function paragraph(l: Layout, p: Paragraph, x = l.left, width = l.width, size = BODY_SIZE): void {
   ensure(l, size * 2.6);
-  writeRuns(l, l.pdf, p.runs, x, l.pdf.y, width, { size });
+  tag(l, 'P', () => writeRuns(l, l.pdf, p.runs, x, l.pdf.y, width, { size }));
   l.pdf.y += PARA_GAP;
 }
 
 function list(l: Layout, b: BulletList, x = l.left, width = l.width): void {
-  b.items.forEach((item, i) => {
+  // A short list is kept whole on one page rather than leaving an item or two alone on the next.
+  const whole = b.items.reduce((h, item) => h + measureRuns(l, item, width - 20, { size: BODY_SIZE }) + 2, 0);
+  if (whole < (l.pdf.page.height - MARGIN.top - MARGIN.bottom) / 3) ensure(l, whole);
+  group(l, 'L', () => b.items.forEach((item, i) => {
     ensure(l, BODY_SIZE * 2.6);
     const y = l.pdf.y;
     const marker = b.ordered ? `${i + 1}.` : '•';
-    l.pdf.font('regular').fontSize(BODY_SIZE).fillColor(INK).text(marker, x + 4, y, { width: 16, lineBreak: false });
-    writeRuns(l, l.pdf, item, x + 20, y, width - 20, { size: BODY_SIZE });
+    group(l, 'LI', () => {
+      tag(l, 'Lbl', () => { l.pdf.font('regular').fontSize(BODY_SIZE).fillColor(INK).text(marker, x + 4, y, { width: 16, lineBreak: false }); });
+      tag(l, 'LBody', () => writeRuns(l, l.pdf, item, x + 20, y, width - 20, { size: BODY_SIZE }));
+    });
     l.pdf.y += 2;
-  });
+  }));
   l.pdf.y += PARA_GAP - 2;
 }
 
-function heading(l: Layout, text: string, level: 1 | 2 | 3): void {
-  const size = level === 1 ? 15 : level === 2 ? 12.5 : 11;
-  // Keep the heading with at least a few lines of what follows it.
-  ensure(l, size * 2 + 60);
+const headingSize = (level: 1 | 2 | 3) => (level === 1 ? 15 : level === 2 ? 12.5 : 11);
+
+/** Height of a heading as drawn (its text, the space above it and the rule under a level-1 heading). */
+function headingHeight(l: Layout, text: string, level: 1 | 2 | 3): number {
+  return measureRuns(l, [plain(text, 'bold')], l.width, { size: headingSize(level) }) + (level === 1 ? 18 : 11);
+}
+
+function heading(l: Layout, text: string, level: 1 | 2 | 3, keepWith = 60): void {
+  const size = headingSize(level);
+  // Keep with next: the heading moves to a new page unless what must follow it fits under it.
+  ensure(l, headingHeight(l, text, level) + keepWith);
   if (!atTop(l)) l.pdf.y += level === 1 ? 12 : 8;
-  l.pdf.font('bold').fontSize(size).fillColor(INK).text(text, l.left, l.pdf.y, { width: l.width });
+  tag(l, `H${level + 1}`, () => { l.pdf.font('bold').fontSize(size).fillColor(INK).text(text, l.left, l.pdf.y, { width: l.width }); });
   if (level === 1) {
     const y = l.pdf.y + 1;
-    l.pdf.moveTo(l.left, y).lineTo(l.left + l.width, y).lineWidth(0.6).strokeColor(RULE).stroke();
+    artifact(l, () => l.pdf.moveTo(l.left, y).lineTo(l.left + l.width, y).lineWidth(0.6).strokeColor(RULE).stroke(), 'Layout');
     l.pdf.y = y + 5;
   } else {
     l.pdf.y += 3;
@@ -164,21 +207,25 @@ function box(l: Layout, content: BoxContent, style: { fill: string; edge: string
   const x0 = l.left;
   const y0 = l.pdf.y + 2;
   if (h <= bottom(l) - y0) {
-    l.pdf.save();
-    l.pdf.rect(x0, y0, l.width, h).fill(style.fill);
-    if (style.leftBarOnly) l.pdf.rect(x0, y0, 4, h).fill(style.edge);
-    else l.pdf.rect(x0, y0, l.width, h).lineWidth(1.5).strokeColor(style.edge).stroke();
-    l.pdf.restore();
+    artifact(l, () => {
+      l.pdf.save();
+      l.pdf.rect(x0, y0, l.width, h).fill(style.fill);
+      if (style.leftBarOnly) l.pdf.rect(x0, y0, 4, h).fill(style.edge);
+      else l.pdf.rect(x0, y0, l.width, h).lineWidth(1.5).strokeColor(style.edge).stroke();
+      l.pdf.restore();
+    }, 'Layout');
   }
   const x = x0 + pad + (style.leftBarOnly ? 4 : 0);
   l.pdf.y = y0 + pad;
-  for (const c of content) {
-    if (c.kind === 'title') {
-      writeRuns(l, l.pdf, [plain(c.text, 'bold')], x, l.pdf.y, inner, { size: BODY_SIZE + 1 });
-      l.pdf.y += 4;
-    } else if (c.kind === 'paragraph') paragraph(l, c, x, inner);
-    else list(l, c, x, inner);
-  }
+  group(l, 'Div', () => {
+    for (const c of content) {
+      if (c.kind === 'title') {
+        tag(l, 'P', () => writeRuns(l, l.pdf, [plain(c.text, 'bold')], x, l.pdf.y, inner, { size: BODY_SIZE + 1 }));
+        l.pdf.y += 4;
+      } else if (c.kind === 'paragraph') paragraph(l, c, x, inner);
+      else list(l, c, x, inner);
+    }
+  });
   l.pdf.y = Math.max(l.pdf.y, y0 + h) + 10;
 }
 
@@ -221,8 +268,34 @@ function columnWidths(l: Layout, t: Table): number[] {
     const wsum = t.columns.reduce((a, c) => a + (c.width ?? 1), 0);
     return natural.map((n, i) => n + spare * ((t.columns[i]!.width ?? 1) / wsum));
   }
-  const wsum = weights.reduce((a, b) => a + b, 0);
-  return weights.map((w) => (w / wsum) * l.width);
+  // Too wide: share the width by weight, but never below a column's minimum — the longest word of
+  // its header (headers never split inside a word) and its longest number (numbers never wrap).
+  const min = t.columns.map((col, i) => {
+    pdf.font('condBold').fontSize(TABLE_SIZE);
+    let m = Math.max(...col.header.split(/\s+/).map((w) => pdf.widthOfString(w)));
+    pdf.font('cond').fontSize(TABLE_SIZE);
+    for (const r of t.rows) {
+      const c = r.cells[i]!;
+      const txt = cellText(c, col, l.doc.suppression);
+      const whole = c.kind === 'number' || c.kind === 'suppressed' || /^[-−+]?[\d.,]+\s?%?$/.test(txt);
+      m = Math.max(m, whole ? pdf.widthOfString(txt) : Math.max(0, ...txt.split(/\s+/).map((w) => pdf.widthOfString(w))));
+    }
+    return Math.min(natural[i]!, m + 2 * CELL_PAD_X + 1);
+  });
+  const out = new Array<number>(natural.length).fill(0);
+  const fixed = new Set<number>();
+  for (let pass = 0; pass < natural.length; pass++) {
+    const free = natural.map((_, i) => i).filter((i) => !fixed.has(i));
+    const left = l.width - [...fixed].reduce((a, i) => a + out[i]!, 0);
+    const wsum = free.reduce((a, i) => a + weights[i]!, 0);
+    let changed = false;
+    for (const i of free) {
+      out[i] = (weights[i]! / wsum) * left;
+      if (out[i]! < min[i]!) { out[i] = min[i]!; fixed.add(i); changed = true; }
+    }
+    if (!changed) break;
+  }
+  return out;
 }
 
 function rowTexts(l: Layout, t: Table, r: number): string[] {
@@ -240,24 +313,43 @@ function rowHeight(l: Layout, texts: string[], widths: number[], bold: boolean):
   return h + 2 * CELL_PAD_Y;
 }
 
-function drawRow(l: Layout, t: Table, texts: string[], widths: number[], y: number, h: number, kind: 'header' | 'body' | 'total'): void {
+/** One table row; `repeat` marks a header row repeated on a continuation page (an artifact: the
+ *  structure already has the header once). */
+function drawRow(l: Layout, t: Table, texts: string[], widths: number[], y: number, h: number, kind: 'header' | 'body' | 'total', repeat = false): void {
   const pdf = l.pdf;
   const tw = widths.reduce((a, b) => a + b, 0);
-  if (kind === 'header') pdf.rect(l.left, y, tw, h).fill('#ececec');
-  let x = l.left;
-  pdf.font(kind === 'body' ? 'cond' : 'condBold').fontSize(TABLE_SIZE).fillColor(INK);
-  texts.forEach((s, i) => {
-    const w = widths[i]!;
-    pdf.text(s, x + CELL_PAD_X, y + CELL_PAD_Y, { width: w - 2 * CELL_PAD_X, align: t.columns[i]!.align, lineGap: 1 });
-    x += w;
-  });
+  if (kind === 'header') artifact(l, () => pdf.rect(l.left, y, tw, h).fill('#ececec'), 'Layout');
+  const cells = () => {
+    let x = l.left;
+    texts.forEach((s, i) => {
+      const w = widths[i]!;
+      const draw = () => {
+        pdf.font(kind === 'body' ? 'cond' : 'condBold').fontSize(TABLE_SIZE).fillColor(INK);
+        pdf.text(s, x + CELL_PAD_X, y + CELL_PAD_Y, { width: w - 2 * CELL_PAD_X, align: t.columns[i]!.align, lineGap: 1 });
+      };
+      if (repeat) draw(); else tag(l, kind === 'header' ? 'TH' : 'TD', draw);
+      x += w;
+    });
+  };
+  if (repeat) artifact(l, cells, 'Pagination'); else group(l, 'TR', cells);
   const ruleY = y + h;
-  if (kind === 'header') {
-    pdf.moveTo(l.left, ruleY).lineTo(l.left + tw, ruleY).lineWidth(1).strokeColor(INK).stroke();
-  } else {
-    if (kind === 'total') pdf.moveTo(l.left, y).lineTo(l.left + tw, y).lineWidth(0.9).strokeColor(INK).stroke();
-    pdf.moveTo(l.left, ruleY).lineTo(l.left + tw, ruleY).lineWidth(0.3).strokeColor('#d6d6d6').stroke();
-  }
+  artifact(l, () => {
+    if (kind === 'header') {
+      pdf.moveTo(l.left, ruleY).lineTo(l.left + tw, ruleY).lineWidth(1).strokeColor(INK).stroke();
+    } else {
+      if (kind === 'total') pdf.moveTo(l.left, y).lineTo(l.left + tw, y).lineWidth(0.9).strokeColor(INK).stroke();
+      pdf.moveTo(l.left, ruleY).lineTo(l.left + tw, ruleY).lineWidth(0.3).strokeColor('#d6d6d6').stroke();
+    }
+  }, 'Layout');
+}
+
+/** Caption, header and the first rows of a table (all of it when short): what must not be parted from its heading. */
+function tableLeadHeight(l: Layout, t: Table): number {
+  const widths = columnWidths(l, t);
+  const headerH = rowHeight(l, t.columns.map((c) => c.header), widths, true);
+  const captionH = measureRuns(l, [plain(`${l.captions.get(t.id) ?? 'Table'}. `, 'bold'), plain(t.caption)], l.width, { size: BODY_SIZE - 0.5 });
+  const rows = t.rows.slice(0, Math.min(t.rows.length, 8)).map((row, r) => rowHeight(l, rowTexts(l, t, r), widths, row.emphasis === 'total'));
+  return captionH + 10 + headerH + rows.reduce((a, b) => a + b, 0);
 }
 
 function table(l: Layout, t: Table): void {
@@ -275,12 +367,24 @@ function table(l: Layout, t: Table): void {
   // its caption, header and first row.
   ensure(l, whole <= pageH ? whole : captionH + 5 + headerH + (heights[0] ?? 0));
   l.pdf.y += 2;
-  writeRuns(l, l.pdf, captionRuns, l.left, l.pdf.y, l.width, { size: BODY_SIZE - 0.5 });
+  group(l, 'Table', () => tableBody(l, t, { widths, headers, headerH, heights, captionRuns, label }));
+  const notes: Inline[][] = [...(t.notes ?? []), ...tableLegend(t, l.doc.suppression).map((s) => [plain(s)])];
+  for (const n of notes) {
+    ensure(l, 14);
+    tag(l, 'P', () => writeRuns(l, l.pdf, n, l.left, l.pdf.y, l.width, { size: BODY_SIZE - 1.5, color: MUTED }));
+    l.pdf.y += 1.5;
+  }
+  l.pdf.y += PARA_GAP + 4;
+}
+
+function tableBody(l: Layout, t: Table, m: { widths: number[]; headers: string[]; headerH: number; heights: number[]; captionRuns: Inline[]; label: string }): void {
+  const { widths, headers, headerH, heights, captionRuns, label } = m;
+  tag(l, 'Caption', () => writeRuns(l, l.pdf, captionRuns, l.left, l.pdf.y, l.width, { size: BODY_SIZE - 0.5 }));
   l.pdf.y += 3;
   let y = l.pdf.y;
-  drawRow(l, t, headers, widths, y, headerH, 'header');
+  group(l, 'THead', () => drawRow(l, t, headers, widths, y, headerH, 'header'));
   y += headerH;
-  t.rows.forEach((row, r) => {
+  group(l, 'TBody', () => t.rows.forEach((row, r) => {
     const texts = rowTexts(l, t, r);
     const total = row.emphasis === 'total';
     const h = heights[r]!;
@@ -289,24 +393,36 @@ function table(l: Layout, t: Table): void {
     const tailFits = tail <= bottom(l) - MARGIN.top - headerH - 20;
     if (y + (tailFits ? tail : h) > bottom(l)) {
       newPage(l);
-      // Continued tables repeat their caption label and header row.
-      writeRuns(l, l.pdf, [plain(`${label} (continued). `, 'bold'), plain(t.caption, 'italic')], l.left, l.pdf.y, l.width, { size: BODY_SIZE - 1.5, color: MUTED });
+      // Continued tables repeat their caption label and header row (artifacts: read once).
+      artifact(l, () => writeRuns(l, l.pdf, [plain(`${label} (continued). `, 'bold'), plain(t.caption, 'italic')], l.left, l.pdf.y, l.width, { size: BODY_SIZE - 1.5, color: MUTED }), 'Pagination');
       l.pdf.y += 3;
       y = l.pdf.y;
-      drawRow(l, t, headers, widths, y, headerH, 'header');
+      drawRow(l, t, headers, widths, y, headerH, 'header', true);
       y += headerH;
     }
     drawRow(l, t, texts, widths, y, h, total ? 'total' : 'body');
     y += h;
-  });
+  }));
   l.pdf.y = y + 4;
-  const notes: Inline[][] = [...(t.notes ?? []), ...tableLegend(t, l.doc.suppression).map((s) => [plain(s)])];
-  for (const n of notes) {
-    ensure(l, 14);
-    writeRuns(l, l.pdf, n, l.left, l.pdf.y, l.width, { size: BODY_SIZE - 1.5, color: MUTED });
-    l.pdf.y += 1.5;
-  }
-  l.pdf.y += PARA_GAP + 4;
+}
+
+/** Figures take at most this share of the page's text height, so two fit on a page with their captions. */
+const FIGURE_SHARE = 0.36;
+
+function figureSize(l: Layout, pw: number, ph: number): { w: number; h: number } {
+  let w = l.width * 0.92;
+  let h = (w * ph) / pw;
+  const maxH = (l.pdf.page.height - MARGIN.top - MARGIN.bottom) * FIGURE_SHARE;
+  if (h > maxH) { h = maxH; w = (h * pw) / ph; }
+  return { w, h };
+}
+
+function figureHeight(l: Layout, f: Figure): number {
+  const png = l.pngs.get(f.id);
+  if (!png) return 0;
+  const { width: pw, height: ph } = pngSize(png);
+  const captionH = measureRuns(l, [plain(`${l.captions.get(f.id) ?? 'Figure'}. `, 'bold'), plain(f.caption)], l.width, { size: BODY_SIZE - 0.5 });
+  return figureSize(l, pw, ph).h + captionH + 12;
 }
 
 function figure(l: Layout, f: Figure): void {
@@ -316,26 +432,27 @@ function figure(l: Layout, f: Figure): void {
   const captionH = measureRuns(l, captionRuns, l.width, { size: BODY_SIZE - 0.5 });
   if (!png) return;
   const { width: pw, height: ph } = pngSize(png);
-  let w = l.width;
-  let h = (w * ph) / pw;
-  const maxH = l.pdf.page.height - MARGIN.top - MARGIN.bottom - captionH - 12;
-  if (h > maxH) { h = maxH; w = (h * pw) / ph; }
+  const { w, h } = figureSize(l, pw, ph);
   ensure(l, h + captionH + 12);
   const y = l.pdf.y + 4;
-  l.pdf.image(png, l.left + (l.width - w) / 2, y, { width: w, height: h });
+  tag(l, 'Figure', () => { l.pdf.image(png, l.left + (l.width - w) / 2, y, { width: w, height: h }); }, { alt: f.alt });
   l.pdf.y = y + h + 4;
-  writeRuns(l, l.pdf, captionRuns, l.left, l.pdf.y, l.width, { size: BODY_SIZE - 0.5 });
+  tag(l, 'Caption', () => writeRuns(l, l.pdf, captionRuns, l.left, l.pdf.y, l.width, { size: BODY_SIZE - 0.5 }));
   l.pdf.y += PARA_GAP + 6;
 }
 
 function glossary(l: Layout, entries: Array<{ term: string; definition: Inline[] }>): void {
-  for (const e of entries) {
-    ensure(l, BODY_SIZE * 4);
-    l.pdf.font('bold').fontSize(BODY_SIZE).fillColor(INK).text(e.term, l.left, l.pdf.y, { width: l.width });
-    l.pdf.y += 1;
-    writeRuns(l, l.pdf, e.definition, l.left + 16, l.pdf.y, l.width - 16, { size: BODY_SIZE });
-    l.pdf.y += PARA_GAP;
-  }
+  group(l, 'L', () => {
+    for (const e of entries) {
+      ensure(l, BODY_SIZE * 4);
+      group(l, 'LI', () => {
+        tag(l, 'Lbl', () => { l.pdf.font('bold').fontSize(BODY_SIZE).fillColor(INK).text(e.term, l.left, l.pdf.y, { width: l.width }); });
+        l.pdf.y += 1;
+        tag(l, 'LBody', () => writeRuns(l, l.pdf, e.definition, l.left + 16, l.pdf.y, l.width - 16, { size: BODY_SIZE }));
+      });
+      l.pdf.y += PARA_GAP;
+    }
+  });
 }
 
 function block(l: Layout, b: Block): void {
@@ -353,29 +470,64 @@ function block(l: Layout, b: Block): void {
   }
 }
 
+/** The least of a block that must stand under a heading: a whole small table or figure, a table's
+ *  caption, header and first rows, a box, or two lines of text. */
+function leadHeight(l: Layout, b: Block | undefined): number {
+  if (!b) return 0;
+  switch (b.kind) {
+    case 'figure': return figureHeight(l, b);
+    case 'table': return tableLeadHeight(l, b);
+    case 'keyFinding': return boxHeight(l, [{ kind: 'title', text: b.title }, ...b.body], l.width - 20) + 28;
+    case 'note': return Math.min(220, boxHeight(l, [{ kind: 'title', text: b.title ?? '' }, ...b.body], l.width - 24) + 28);
+    case 'paragraph': return Math.min(measureRuns(l, b.runs, l.width, { size: BODY_SIZE }), BODY_SIZE * 3.2) + PARA_GAP;
+    case 'list': {
+      // A short list is kept whole (see list()), so the heading must keep with all of it.
+      const whole = b.items.reduce((h, item) => h + measureRuns(l, item, l.width - 20, { size: BODY_SIZE }) + 2, 0);
+      return whole < (l.pdf.page.height - MARGIN.top - MARGIN.bottom) / 3 ? whole : BODY_SIZE * 3.2;
+    }
+    default: return BODY_SIZE * 3.2;
+  }
+}
+
+/** What must follow a section's heading on the same page: its first block, or its first sub-section's heading and first block. */
+function keepWithHeight(l: Layout, s: Section, level: 1 | 2 | 3): number {
+  if (s.blocks.length) {
+    const first = leadHeight(l, s.blocks[0]);
+    // A short lead paragraph is kept together with the block after it (a table or figure it introduces).
+    return s.blocks[0]!.kind === 'paragraph' && s.blocks[1] && s.blocks[1].kind !== 'paragraph' ? first + leadHeight(l, s.blocks[1]) : first;
+  }
+  const sub = s.sections?.[0];
+  if (!sub) return 0;
+  const subLevel = Math.min(3, level + 1) as 1 | 2 | 3;
+  return headingHeight(l, sub.heading, subLevel) + keepWithHeight(l, sub, subLevel);
+}
+
 function section(l: Layout, s: Section, level: 1 | 2 | 3): void {
   if (s.pageBreakBefore && !atTop(l)) newPage(l);
-  heading(l, s.heading, level);
-  for (const b of s.blocks) block(l, b);
-  for (const c of s.sections ?? []) section(l, c, Math.min(3, level + 1) as 1 | 2 | 3);
+  const pageH = l.pdf.page.height - MARGIN.top - MARGIN.bottom;
+  group(l, 'Sect', () => {
+    heading(l, s.heading, level, Math.min(keepWithHeight(l, s, level), pageH * 0.8));
+    for (const b of s.blocks) block(l, b);
+    for (const c of s.sections ?? []) section(l, c, Math.min(3, level + 1) as 1 | 2 | 3);
+  });
 }
 
 function titleBlock(l: Layout): void {
   const tb = l.doc.title;
   const pdf = l.pdf;
-  pdf.font('bold').fontSize(20).fillColor(INK).text(tb.title, l.left, MARGIN.top, { width: l.width, lineGap: 2 });
+  tag(l, 'H1', () => { pdf.font('bold').fontSize(20).fillColor(INK).text(tb.title, l.left, MARGIN.top, { width: l.width, lineGap: 2 }); });
   pdf.y += 4;
   if (tb.subtitle) {
-    pdf.font('regular').fontSize(12).fillColor(MUTED).text(tb.subtitle, l.left, pdf.y, { width: l.width });
+    tag(l, 'P', () => { pdf.font('regular').fontSize(12).fillColor(MUTED).text(tb.subtitle!, l.left, pdf.y, { width: l.width }); });
     pdf.y += 6;
   }
-  pdf.font('bold').fontSize(10).fillColor(INK).text(tb.dateLine, l.left, pdf.y, { width: l.width });
+  tag(l, 'P', () => { pdf.font('bold').fontSize(10).fillColor(INK).text(tb.dateLine, l.left, pdf.y, { width: l.width }); });
   pdf.y += 4;
   for (const line of tb.provenance) {
-    pdf.font('cond').fontSize(8).fillColor(MUTED).text(line, l.left, pdf.y, { width: l.width });
+    tag(l, 'P', () => { pdf.font('cond').fontSize(8).fillColor(MUTED).text(line, l.left, pdf.y, { width: l.width }); });
   }
   const y = pdf.y + 6;
-  pdf.moveTo(l.left, y).lineTo(l.left + l.width, y).lineWidth(1.5).strokeColor(INK).stroke();
+  artifact(l, () => pdf.moveTo(l.left, y).lineTo(l.left + l.width, y).lineWidth(1.5).strokeColor(INK).stroke(), 'Layout');
   pdf.y = y + 14;
 }
 
@@ -386,8 +538,10 @@ function endNotes(l: Layout): void {
   for (const n of notes) {
     ensure(l, 24);
     const y = l.pdf.y;
-    l.pdf.font('regular').fontSize(BODY_SIZE - 1).fillColor(INK).text(`${n.number}.`, l.left, y, { width: 18, lineBreak: false });
-    writeRuns(l, l.pdf, n.body, l.left + 20, y, l.width - 20, { size: BODY_SIZE - 1 });
+    tag(l, 'Note', () => {
+      l.pdf.font('regular').fontSize(BODY_SIZE - 1).fillColor(INK).text(`${n.number}.`, l.left, y, { width: 18, lineBreak: false });
+      writeRuns(l, l.pdf, n.body, l.left + 20, y, l.width - 20, { size: BODY_SIZE - 1 });
+    });
     l.pdf.y += 3;
   }
 }
@@ -402,10 +556,12 @@ function footers(l: Layout): void {
     const saved = pdf.page.margins.bottom;
     pdf.page.margins.bottom = 0;
     const y = pdf.page.height - MARGIN.bottom + 24;
-    pdf.moveTo(l.left, y - 6).lineTo(l.left + l.width, y - 6).lineWidth(0.4).strokeColor(RULE).stroke();
-    pdf.font('cond').fontSize(8).fillColor(MUTED);
-    pdf.text(title, l.left, y, { width: l.width * 0.7, lineBreak: false, ellipsis: true, height: 10 });
-    pdf.text(`Page ${i - range.start + 1} of ${range.count}`, l.left, y, { width: l.width, align: 'right', lineBreak: false });
+    artifact(l, () => {
+      pdf.moveTo(l.left, y - 6).lineTo(l.left + l.width, y - 6).lineWidth(0.4).strokeColor(RULE).stroke();
+      pdf.font('cond').fontSize(8).fillColor(MUTED);
+      pdf.text(title, l.left, y, { width: l.width * 0.7, lineBreak: false, ellipsis: true, height: 10 });
+      pdf.text(`Page ${i - range.start + 1} of ${range.count}`, l.left, y, { width: l.width, align: 'right', lineBreak: false });
+    }, 'Pagination');
     pdf.page.margins.bottom = saved;
   }
 }
@@ -421,6 +577,8 @@ export async function renderPdf(doc: Document, opts: PdfOptions = {}): Promise<B
     margins: MARGIN,
     bufferPages: true,
     autoFirstPage: true,
+    pdfVersion: '1.7',
+    tagged: true,
     lang: doc.title.language ?? 'en',
     displayTitle: true,
     info: {
@@ -442,14 +600,17 @@ export async function renderPdf(doc: Document, opts: PdfOptions = {}): Promise<B
     pdf.on('end', () => resolve(Buffer.concat(chunks)));
     pdf.on('error', reject);
   });
+  const root = pdf.struct('Document');
+  pdf.addStructure(root);
   const l: Layout = {
-    pdf, scratch, doc,
+    pdf, scratch, doc, parent: root,
     fn: footnoteNumbers(doc), captions: captionNumbers(doc), pngs,
     left: MARGIN.left, width: pdf.page.width - MARGIN.left - MARGIN.right,
   };
   titleBlock(l);
   for (const s of doc.sections) section(l, s, 1);
   endNotes(l);
+  root.end();
   footers(l);
   pdf.end();
   scratch.end();
