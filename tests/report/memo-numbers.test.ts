@@ -16,6 +16,7 @@ import type { Document } from '../../main/report/model/document.ts';
 import { cellText, formatNumber, tables } from '../../main/report/model/format.ts';
 import { METHOD_SOURCES } from '../../main/report/model/memo-appendix.ts';
 import { buildMemo } from '../../main/report/model/memo.ts';
+import { findingsOf } from '../../main/report/findings/index.ts';
 import { renderMemoDocument } from '../../main/report/memo-files.ts';
 import { readZip } from './zip-read.ts';
 import { canRun } from './poppler.ts';
@@ -89,6 +90,35 @@ describe('the memo document', () => {
     const words = walk({ ...doc, sections: [doc.sections[0]!] }).texts.map((t) => t.text).join(' ');
     expect(words).toContain('consistent with no effect');
     expect(words).not.toMatch(/2SLS|instrument|APS|complier|delta|propensity|estimand|standard error/i);
+  });
+  it('words the interval the way it words the effect: signed when it covers zero, as sizes of the same fall otherwise', () => {
+    const kfText = (r: Results) => {
+      const d = buildMemo(r, { boundaryMap: null, boundaryMapNote: null, signedDistance: null, density: [], balanceAll: [] }, { createdAt: '2025-03-12T09:30:00Z' });
+      return JSON.stringify(d.sections[0]!.blocks[0]!);
+    };
+    // as run (covers zero): both ends carry their sign
+    const runsWith = (json: string, source: string): Array<{ format?: { signed?: boolean } }> => {
+      const found: Array<{ format?: { signed?: boolean } }> = [];
+      const visit = (v: unknown): void => {
+        if (Array.isArray(v)) v.forEach(visit);
+        else if (v && typeof v === 'object') {
+          if ((v as { source?: unknown }).source === source) found.push(v as { format?: { signed?: boolean } });
+          Object.values(v).forEach(visit);
+        }
+      };
+      visit(JSON.parse(json));
+      return found;
+    };
+    const asRun = kfText(results);
+    for (const end of [0, 1]) expect(runsWith(asRun, `outcomes[0].byDelta[1].ci[${end}]`).map((r) => r.format?.signed)).toEqual([true]);
+    // the same results with the interval moved below zero: "lowered by" the sizes, smaller first
+    const lower = structuredClone(results);
+    const b = lower.outcomes[0]!.byDelta[1]!;
+    b.estimate = -30; b.ci = [-50, -10]; b.arCi = [[-60, -5]]; b.tfCi = [-55, -8];
+    lower.findings = findingsOf(lower).findings;
+    const t = kfText(lower);
+    expect(t).toContain('(95% interval: lowered by ');
+    expect(t.indexOf('"source":"abs(outcomes[0].byDelta[1].ci[1])"')).toBeLessThan(t.indexOf('"source":"abs(outcomes[0].byDelta[1].ci[0])"'));
   });
   it('writes no digit of its own: every digit in its text is part of a string from results.json', () => {
     const strings = [...allStrings(results)].filter((s) => /\d/.test(s));

@@ -62,7 +62,16 @@ function outcomeFinding(ctx: MemoContext, i: number): Inline[] {
   } else {
     runs.push(text(`${upperFirst(effectOf(r))} ${b.estimate < 0 ? 'lowered' : 'raised'} ${lowerFirst(name.name)} by `), absNum(r, `${p}.estimate`, fmt));
   }
-  runs.push(text(' on average (95% interval '), num(r, `${p}.ci[0]`, fmt), text(' to '), num(r, `${p}.ci[1]`, fmt), text('). '));
+  // The interval is worded the same way as the effect (issue 10 §6: no "lowered by 53 (95%
+  // interval −97 to −10)"): signed when the effect is stated as a signed change, as sizes of the
+  // same fall or rise otherwise.
+  if (f.usual === 'covers') {
+    runs.push(text(' on average (95% interval '), num(r, `${p}.ci[0]`, { ...fmt, signed: true }), text(' to '), num(r, `${p}.ci[1]`, { ...fmt, signed: true }), text('). '));
+  } else if (b.estimate < 0) {
+    runs.push(text(' on average (95% interval: lowered by '), absNum(r, `${p}.ci[1]`, fmt), text(' to '), absNum(r, `${p}.ci[0]`, fmt), text('). '));
+  } else {
+    runs.push(text(' on average (95% interval: raised by '), num(r, `${p}.ci[0]`, fmt), text(' to '), num(r, `${p}.ci[1]`, fmt), text('). '));
+  }
   if (r.estimand.treatmentPer !== 1) {
     runs.push(text('This is per '), num(r, 'estimand.treatmentPer', { style: 'decimal', decimals: 0 }), text(' of the benefit received. '));
   }
