@@ -2,7 +2,15 @@
 // but not the transport: browser mode sends calls over HTTP with the per-launch token, the
 // Electron shell through the preload's invoke. Screens only ever see `ApiClient`.
 
-import type { ApiMethod, ApiMethods, ApiResult, ProgressEvent } from '../../main/contract/api.ts';
+import type { ApiMethod, ApiMethods, ApiResult, ProgressEvent, UploadedFile } from '../../main/contract/api.ts';
+
+/** A file the analyst picked or dropped (a browser File is one). */
+export interface PickedFile {
+  name: string;
+  size: number;
+  /** The bytes, as fetch sends them (a File or Blob). */
+  readonly body: Blob;
+}
 
 export interface CallOptions {
   /** Follow long work (study.evaluate, data.preview, data.check). */
@@ -14,10 +22,15 @@ export interface CallOptions {
 /** Moves one call to the main side and back; the answer is untyped until the client types it. */
 export interface Transport {
   call(method: string, args: unknown, options: CallOptions): Promise<ApiResult<unknown>>;
+  /** Hand a picked file to the host, which keeps a copy in the workspace (browser mode); absent where the host picks files itself (Electron's dialog). */
+  upload?(file: PickedFile): Promise<ApiResult<UploadedFile>>;
 }
 
 export interface ApiClient {
   call<M extends ApiMethod>(method: M, args: ApiMethods[M]['args'], options?: CallOptions): Promise<ApiResult<ApiMethods[M]['result']>>;
+  /** Can files be handed over by picking or dropping them in the page (browser mode)? */
+  readonly canUpload: boolean;
+  upload(file: PickedFile): Promise<ApiResult<UploadedFile>>;
 }
 
 /** What the answer is when the transport itself fails (server gone, window closing). */
@@ -30,6 +43,15 @@ export function createApiClient(transport: Transport): ApiClient {
     async call(method, args, options = {}) {
       try {
         return (await transport.call(method, args, options)) as ApiResult<never>;
+      } catch (e) {
+        return transportFailure(e instanceof Error ? e.message : String(e));
+      }
+    },
+    canUpload: transport.upload !== undefined,
+    async upload(file) {
+      if (!transport.upload) return { ok: false, error: { kind: 'input', problems: [{ path: 'file', message: 'Here files are chosen with “Choose a file…”, which opens your computer’s own file window.' }] } };
+      try {
+        return await transport.upload(file);
       } catch (e) {
         return transportFailure(e instanceof Error ? e.message : String(e));
       }

@@ -113,6 +113,7 @@ function tidyCondition(c: Condition): Condition {
 /** The draft as a study file object. */
 export function toStudyFile(d: StudyDraft): Study {
   const data: Study['data'] = { path: d.data.path.trim() };
+  if (d.data.fileName) data.fileName = d.data.fileName;
   if (d.data.sheet) data.sheet = d.data.sheet;
   if (d.data.headerRow) data.headerRow = d.data.headerRow;
   if (d.data.join?.length) data.join = d.data.join;
