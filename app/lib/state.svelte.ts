@@ -7,7 +7,9 @@ import type {
 } from '../../main/contract/api.ts';
 import type { Problem } from '../../main/contract/program.ts';
 import type { Results } from '../../main/contract/results.ts';
-import type { ApiClient } from './api-client.ts';
+import type { ApiClient, PickedFile } from './api-client.ts';
+import { guessJoinKey } from './data-files.ts';
+import { overallShare } from './progress.ts';
 import { blankStudy, normalizeDraft, slug, tidyProgram, toStudyFile, type StudyDraft } from './draft.ts';
 import { pathStatus, type StepId } from './steps.ts';
 
@@ -64,7 +66,7 @@ export class AppState {
       draft: this.draft,
       programCheck: this.programCheck,
       dataReport: this.dataReport,
-      dataReportCurrent: this.draft !== null && this.dataReportKey === this.draftKey(),
+      dataReportCurrent: this.draft !== null && this.dataReportKey === this.dataKey(),
       run: this.report,
       memoFiles: this.memoFiles,
       memoFormatsAvailable: (this.info?.memoFormats.length ?? 0) > 0,
@@ -74,6 +76,20 @@ export class AppState {
   draftKey(): string {
     return this.draft ? JSON.stringify(toStudyFile($state.snapshot(this.draft) as StudyDraft)) : '';
   }
+
+  /** What the data check depends on: the study less the words it prints (outcome names, labels, title) and the run settings. */
+  dataKey(): string {
+    if (!this.draft) return '';
+    const f = toStudyFile($state.snapshot(this.draft) as StudyDraft);
+    return JSON.stringify({
+      data: f.data, rule: f.program.rule, offer: f.program.offer,
+      variables: f.program.variables.map((v) => [v.key, v.type, v.column, v.values ?? null]),
+      columns: { ...f.columns, outcomes: f.columns.outcomes.map((o) => o.column) },
+    });
+  }
+
+  /** The run's bar: overall share done, never moving backwards within a run. */
+  runShare = $state(0);
 
   /** Resolve a data path of the draft for the main side (relative paths are relative to baseDir). */
   dataPath(p: string): string {
@@ -190,7 +206,7 @@ export class AppState {
   async checkData(): Promise<void> {
     if (!this.draft) return;
     this.busy = 'Checking the data against the study…';
-    const key = this.draftKey();
+    const key = this.dataKey();
     const r = await this.api.call('data.check', { study: toStudyFile($state.snapshot(this.draft) as StudyDraft), ...(this.baseDir ? { baseDir: this.baseDir } : {}) }, { onProgress: (p) => { this.progress = p; } });
     this.busy = null;
     this.progress = null;
@@ -199,12 +215,73 @@ export class AppState {
     else { this.dataReport = null; this.dataProblems = r.error.problems; }
   }
 
+  /** Files picked or dropped on the Data step (browser mode): each is handed to the host; the first becomes the data file when there is none, the others are linked by the unit ID. */
+  async addFiles(files: readonly PickedFile[]): Promise<Problem[]> {
+    const d = this.draft;
+    if (!d || files.length === 0) return [];
+    const problems: Problem[] = [];
+    const kept: Array<{ path: string; name: string }> = [];
+    for (const [i, f] of files.entries()) {
+      this.busy = `Opening ${f.name}${files.length > 1 ? ` (${i + 1} of ${files.length})` : ''}…`;
+      const r = await this.api.upload(f);
+      if (r.ok) kept.push({ path: r.value.path, name: r.value.name });
+      else problems.push(...r.error.problems.map((p) => ({ ...p, path: 'data.path' })));
+    }
+    this.busy = null;
+    if (kept.length === 0) return problems;
+    if (!d.data.path) {
+      const main = kept.shift()!;
+      this.setDataFile(main.path, main.name);
+      await this.loadPreview();
+    }
+    for (const k of kept) problems.push(...(await this.linkFile(k.path, k.name)));
+    if (kept.length) await this.loadPreview();
+    return problems;
+  }
+
+  /** The data file, chosen by path (typed, the native dialog, or a kept upload with its own name). */
+  setDataFile(path: string, fileName?: string): void {
+    const d = this.draft;
+    if (!d) return;
+    d.data.path = path;
+    if (fileName) d.data.fileName = fileName; else delete d.data.fileName;
+    delete d.data.sheet;
+    delete d.data.headerRow;
+    this.dataReport = null;
+    this.dataProblems = [];
+    this.preview = null;
+  }
+
+  /** Link a second file by the unit ID, the key column guessed from its names. */
+  async linkFile(path: string, fileName?: string): Promise<Problem[]> {
+    const d = this.draft;
+    if (!d) return [];
+    const name = fileName ?? path.split(/[\/]/).pop() ?? path;
+    const pr = await this.api.call('data.preview', { path: this.dataPath(path) });
+    if (!pr.ok) return pr.error.problems.map((p) => ({ ...p, path: 'data.join' }));
+    const key = guessJoinKey(pr.value, d.columns.id || (this.preview?.columns.find((c) => c.suggestion?.role === 'id')?.name ?? ''));
+    if (!key) return [{ path: 'data.join', message: `${name}: no column looks like the unit ID. Link it below and say which column holds the ID.` }];
+    d.data.join = [...(d.data.join ?? []), { path, key, ...(fileName ? { fileName } : {}) }];
+    return [];
+  }
+
+  /** Electron: the native open dialog. */
+  async chooseDataFile(): Promise<Problem[]> {
+    const r = await this.api.call('dialog.openFile', { purpose: 'data' });
+    if (!r.ok) return r.error.problems;
+    if (!r.value.path) return [];
+    this.setDataFile(r.value.path);
+    await this.loadPreview();
+    return [];
+  }
+
   async run(): Promise<void> {
     const d = this.draft;
     const info = this.info;
     if (!d || !info) return;
     this.runProblems = [];
     this.runState = 'running';
+    this.runShare = 0;
     this.progress = { stage: 'saving', done: 0, total: 1 };
     const name = `${slug(d.title)}`;
     // The study as run is kept in the workspace, next to the run's files; the analyst's own file is changed only by Save.
@@ -215,7 +292,7 @@ export class AppState {
     this.controller = new AbortController();
     const r = await this.api.call('study.evaluate', {
       studyPath: saved.value.path, outDir: join(info.runsDir, `${name}-${stamp()}`), formats: [...info.memoFormats], workspacePath: info.workspacePath,
-    }, { onProgress: (p) => { this.progress = p; }, signal: this.controller.signal });
+    }, { onProgress: (p) => { this.progress = p; this.runShare = overallShare(p, this.runShare); }, signal: this.controller.signal });
     this.controller = null;
     this.progress = null;
     if (!r.ok) { this.runState = r.error.kind === 'cancelled' ? 'cancelled' : 'failed'; this.runProblems = r.error.problems; return; }
@@ -223,7 +300,7 @@ export class AppState {
     this.results = r.value.results;
     this.memoFiles = r.value.files.filter((f) => MEMO_EXT.test(f));
     this.runState = 'done';
-    this.notice = `The run finished: ${r.value.results.study.rowsUsed.toLocaleString('en-US')} units used. Files are in ${r.value.outDir}.`;
+    this.notice = `The run finished: ${r.value.results.study.rowsUsed.toLocaleString('en-US')} unit${r.value.results.study.rowsUsed === 1 ? '' : 's'} used. Files are in ${r.value.outDir}.`;
     void this.refreshRecent();
   }
 
@@ -245,7 +322,8 @@ export class AppState {
     this.progress = null;
     if (!r.ok) { this.memoProblems = r.error.problems; return; }
     this.memoFiles = r.value.files.filter((f) => MEMO_EXT.test(f));
-    this.notice = `Wrote ${this.memoFiles.length} memo file(s) to ${r.value.outDir}.`;
+    const n = r.value.files.length;
+    this.notice = `Wrote ${n} file${n === 1 ? '' : 's'} to ${r.value.outDir}: ${r.value.files.map((f) => f.split(/[\\/]/).pop()).join(', ')}.`;
   }
 
   async openRecordedRun(runId: number): Promise<Problem[]> {

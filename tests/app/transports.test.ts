@@ -9,8 +9,8 @@ type Sent = { url: string; headers: Record<string, string>; body: unknown };
 
 function fakeFetch(answer: (s: Sent) => { status: number; body: unknown }) {
   const sent: Sent[] = [];
-  const fetchImpl = async (url: string, init: { method: string; headers: Record<string, string>; body?: string }) => {
-    const s = { url, headers: init.headers, body: init.body ? JSON.parse(init.body) : null };
+  const fetchImpl = async (url: string, init: { method: string; headers: Record<string, string>; body?: string | Blob }) => {
+    const s = { url, headers: init.headers, body: typeof init.body === 'string' ? JSON.parse(init.body) : null };
     sent.push(s);
     const a = answer(s);
     return { status: a.status, json: async () => a.body };
