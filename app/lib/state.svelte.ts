@@ -283,7 +283,7 @@ export class AppState {
     this.runState = 'running';
     this.runShare = 0;
     this.progress = { stage: 'saving', done: 0, total: 1 };
-    const name = `${slug(d.title)}`;
+    const name = slug(d.title || d.program.name);
     // The study as run is kept in the workspace, next to the run's files; the analyst's own file is changed only by Save.
     const studyPath = join(info.studiesDir, name, 'study.json');
     const saved = await this.api.call('study.save', { path: studyPath, study: toStudyFile($state.snapshot(d) as StudyDraft), ...(this.baseDir ? { baseDir: this.baseDir } : {}) });
