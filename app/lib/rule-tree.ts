@@ -47,7 +47,8 @@ export function childPath(path: string, c: Condition, i: number): string {
 
 export function limitKind(c: Comparison): LimitKind {
   if (typeof c.limit === 'object' && c.limit !== null) return 'table';
-  return typeof c.limit === 'string' && !/^\s*-?\d+(\.\d+)?\s*$/.test(c.limit) ? 'expression' : 'number';
+  // An empty limit (not typed yet) is shown in the number field, waiting for its number.
+  return typeof c.limit === 'string' && c.limit.trim() !== '' && !/^\s*-?\d+(\.\d+)?\s*$/.test(c.limit) ? 'expression' : 'number';
 }
 
 /** Is the compared value a plain variable key (the form's variable picker) or an expression? */

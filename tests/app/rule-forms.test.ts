@@ -6,7 +6,7 @@ import { checkProgram } from '../../main/api/program.ts';
 import type { Comparison, Program } from '../../main/contract/program.ts';
 import { blankProgram, blankStudy, keyFromLabel, tidyProgram } from '../../app/lib/draft.ts';
 import { assignProblems, programFieldPaths, shownCount } from '../../app/lib/problems.ts';
-import { addChild, newComparison, newGroup, setLimitKind } from '../../app/lib/rule-tree.ts';
+import { addChild, limitKind, newComparison, newGroup, setLimitKind } from '../../app/lib/rule-tree.ts';
 import { sampleStudy } from './helpers.ts';
 
 const check = async (p: Program) => {
@@ -56,6 +56,7 @@ describe('no silent defaults', () => {
     const p = scratchProgram();
     const c = newComparison(p);
     expect(c.limit).toBe('');
+    expect(limitKind(c)).toBe('number'); // shown in the number field, waiting for its number
     expect(c.value).toBe('age'); // the first continuous variable not compared yet
     (p.rule as { all: unknown[] }).all.push(c);
     const r = await check(p);

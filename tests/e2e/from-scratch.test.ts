@@ -117,6 +117,7 @@ describe('a new study from scratch, forms only', () => {
     await countsAgree();
     expect(await page.locator('#program-rule-all-1--value').inputValue()).toBe('age');
     expect(await page.locator('#program-rule-all-1--limit').inputValue()).toBe('');
+    expect(await page.locator('#program-rule-all-1--lkind').inputValue()).toBe('number');
     expect(await page.getByTestId('reading').textContent()).not.toMatch(/no problems/);
     await shot(page, '12-scratch-rule-incomplete');
     await act('pick: at least', () => page.locator('#program-rule-all-1--op').selectOption('>='));
