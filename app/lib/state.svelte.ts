@@ -179,9 +179,15 @@ export class AppState {
     else { this.tryReport = null; this.tryProblems = r.error.problems; }
   }
 
+  /** A preview is being read (the newest request wins; older answers are dropped). */
+  previewLoading = $state(false);
+  private previewSeq = 0;
+
   async loadPreview(): Promise<void> {
     const d = this.draft;
     if (!d || !d.data.path.trim()) return;
+    const mine = ++this.previewSeq;
+    this.previewLoading = true;
     this.busy = 'Reading the data file…';
     const program = tidyProgram($state.snapshot(d.program) as StudyDraft['program']);
     const r = await this.api.call('data.preview', {
@@ -195,6 +201,8 @@ export class AppState {
       if (jr.ok) joins[j.path] = jr.value;
       else problems.push(...jr.error.problems.map((p) => ({ ...p, path: `data.join[${i}]` })));
     }
+    if (mine !== this.previewSeq) return; // a newer file was chosen meanwhile
+    this.previewLoading = false;
     this.busy = null;
     this.progress = null;
     this.preview = r.ok ? r.value : null;
@@ -243,12 +251,14 @@ export class AppState {
   setDataFile(path: string, fileName?: string): void {
     const d = this.draft;
     if (!d) return;
+    const same = this.dataPath(d.data.path) === this.dataPath(path);
     d.data.path = path;
     if (fileName) d.data.fileName = fileName; else delete d.data.fileName;
+    this.dataProblems = [];
+    if (same) return; // the same file again: read it again, keeping what is shown meanwhile
     delete d.data.sheet;
     delete d.data.headerRow;
     this.dataReport = null;
-    this.dataProblems = [];
     this.preview = null;
   }
 

@@ -73,7 +73,7 @@ describe('the guided path, start to memo', () => {
     const workbook = join(import.meta.dirname, '..', '..', 'sample-programs', 'winter-credit', 'applicants.xlsx');
     await pathBox.fill(workbook);
     await page.getByRole('button', { name: 'Open', exact: true }).first().click();
-    await page.getByRole('heading', { name: 'First rows' }).waitFor({ timeout: 30_000 });
+    await page.getByRole('heading', { name: 'First rows' }).waitFor({ timeout: 60_000 });
     const renter = page.getByLabel('Role of column RENTER');
     await renter.selectOption({ label: 'Not used' });
     await renter.selectOption({ label: 'Covariate (for balance checks)' });
@@ -161,7 +161,7 @@ describe('the guided path, start to memo', () => {
     await pathBox.fill(bad);
     await page.getByRole('button', { name: 'Open', exact: true }).first().click();
     const message = page.locator('#data-path-msg li').first();
-    await message.waitFor({ timeout: 30_000 });
+    await message.waitFor({ timeout: 60_000 }).catch(async (e) => { await shot(page, 'debug-bad'); throw e; });
     expect(await message.textContent()).toMatch(/named like an Excel workbook but holds plain text/);
     expect(await pathBox.getAttribute('aria-invalid')).toBe('true');
     await shot(page, '08-data-bad-workbook');

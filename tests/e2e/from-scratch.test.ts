@@ -66,7 +66,7 @@ async function ensureUpload(page: Page): Promise<void> {
 }
 
 describe('a new study from scratch, forms only', () => {
-  it('reaches the exported memo in at most 25 actions, every problem count equal to the messages shown', async () => {
+  it('reaches the exported memo in at most 25 actions, every problem count equal to the messages shown', { timeout: 600_000 }, async () => {
     const { page } = s;
     const actions: string[] = [];
     const act = async (what: string, f: () => Promise<unknown>) => { actions.push(what); await f(); };
