@@ -182,10 +182,15 @@ export class AppState {
   /** A preview is being read (the newest request wins; older answers are dropped). */
   previewLoading = $state(false);
   private previewSeq = 0;
+  private previewAsked = '';
 
   async loadPreview(): Promise<void> {
     const d = this.draft;
     if (!d || !d.data.path.trim()) return;
+    // The same files asked for while they are being read: the answer on its way serves both.
+    const asked = JSON.stringify([this.dataPath(d.data.path.trim()), d.data.sheet ?? '', d.data.headerRow ?? 0, (d.data.join ?? []).map((j) => [j.path, j.sheet ?? '', j.headerRow ?? 0])]);
+    if (this.previewLoading && asked === this.previewAsked) return;
+    this.previewAsked = asked;
     const mine = ++this.previewSeq;
     this.previewLoading = true;
     this.busy = 'Reading the data file…';

@@ -37,7 +37,7 @@ describe('browser mode guards its api with the launch token', () => {
 });
 
 describe('the guided path, start to memo', () => {
-  it('opens a sample, edits the rule, maps the data, runs, reads the evidence and exports the memo', async () => {
+  it('opens a sample, edits the rule, maps the data, runs, reads the evidence and exports the memo', { timeout: 600_000 }, async () => {
     const { page } = s;
     await page.goto(s.server.url);
     await page.getByRole('heading', { name: 'Start' }).waitFor();
