@@ -2,7 +2,15 @@
 // but not the transport: browser mode sends calls over HTTP with the per-launch token, the
 // Electron shell through the preload's invoke. Screens only ever see `ApiClient`.
 
-import type { ApiMethod, ApiMethods, ApiResult, ProgressEvent } from '../../main/contract/api.ts';
+import type { ApiMethod, ApiMethods, ApiResult, ProgressEvent, UploadedFile } from '../../main/contract/api.ts';
+
+/** A file the analyst picked or dropped (a browser File is one). */
+export interface PickedFile {
+  name: string;
+  size: number;
+  /** The bytes, as fetch sends them (a File or Blob). */
+  readonly body: Blob;
+}
 
 export interface CallOptions {
   /** Follow long work (study.evaluate, data.preview, data.check). */
@@ -18,12 +26,17 @@ export interface Transport {
   call(method: string, args: unknown, options: CallOptions): Promise<ApiResult<unknown>>;
   /** Follow long work started before (its handle from onStarted); null when the host no longer knows it. */
   resume?(handle: string, options: CallOptions): Promise<ApiResult<unknown> | null>;
+  /** Hand a picked file to the host, which keeps a copy in the workspace (browser mode); absent where the host picks files itself (Electron's dialog). */
+  upload?(file: PickedFile): Promise<ApiResult<UploadedFile>>;
 }
 
 export interface ApiClient {
   call<M extends ApiMethod>(method: M, args: ApiMethods[M]['args'], options?: CallOptions): Promise<ApiResult<ApiMethods[M]['result']>>;
   /** Follow a long call of `method` started before a reload; null when it cannot be followed (gone, or a host that cannot). */
   resume<M extends ApiMethod>(method: M, handle: string, options?: CallOptions): Promise<ApiResult<ApiMethods[M]['result']> | null>;
+  /** Can files be handed over by picking or dropping them in the page (browser mode)? */
+  readonly canUpload: boolean;
+  upload(file: PickedFile): Promise<ApiResult<UploadedFile>>;
 }
 
 /** What the answer is when the transport itself fails (server gone, window closing). */
@@ -46,6 +59,15 @@ export function createApiClient(transport: Transport): ApiClient {
         return (await transport.resume(handle, options)) as ApiResult<never> | null;
       } catch {
         return null;
+      }
+    },
+    canUpload: transport.upload !== undefined,
+    async upload(file) {
+      if (!transport.upload) return { ok: false, error: { kind: 'input', problems: [{ path: 'file', message: 'Here files are chosen with “Choose a file…”, which opens your computer’s own file window.' }] } };
+      try {
+        return await transport.upload(file);
+      } catch (e) {
+        return transportFailure(e instanceof Error ? e.message : String(e));
       }
     },
   };

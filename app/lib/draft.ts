@@ -13,8 +13,27 @@ export const DEFAULT_DRAFT_SETTINGS = { deltas: [0.05, 0.1, 0.2], draws: 4000, s
 const isObject = (v: unknown): v is Record<string, unknown> => v !== null && typeof v === 'object' && !Array.isArray(v);
 const text = (v: unknown, fallback = ''): string => (typeof v === 'string' ? v : fallback);
 
+/** A new variable row: its label is typed first; its short name follows the label (keyFromLabel). */
+export const blankVariable = (): Variable => ({ key: '', label: '', type: 'continuous', column: '' });
+
+/**
+ * A new program: one empty variable row and one empty criterion to fill in, shown as incomplete
+ * until they are. The offer defaults to the plain rule (eligible: offered; not: not offered),
+ * shown on the form.
+ */
 export function blankProgram(): Program {
-  return { name: '', unit: '', variables: [], rule: { all: [] }, offer: { ifEligible: 1, ifIneligible: 0 } };
+  return { name: '', unit: '', variables: [blankVariable()], rule: { all: [{ value: '', op: '<=', limit: '' }] }, offer: { ifEligible: 1, ifIneligible: 0 } };
+}
+
+/** "Annual income (USD)" → "annual_income": a short name usable in calculations, unique among `taken`. */
+export function keyFromLabel(label: string, taken: readonly string[] = []): string {
+  let base = label.toLowerCase().normalize('NFKD').replace(/\([^)]*\)/g, ' ').replace(/[^a-z0-9]+/g, '_').replace(/^_+|_+$/g, '').slice(0, 30).replace(/_+$/, '');
+  if (base === '') return '';
+  if (/^[0-9]/.test(base)) base = `v_${base}`;
+  if (base === 'min' || base === 'max') base = `${base}_value`;
+  let key = base;
+  for (let n = 2; taken.includes(key); n++) key = `${base}_${n}`;
+  return key;
 }
 
 export function blankStudy(): StudyDraft {
@@ -31,6 +50,9 @@ export function blankStudy(): StudyDraft {
 /** Any opened study (valid or not) made complete enough to edit: missing parts become blanks. */
 export function normalizeDraft(raw: unknown): StudyDraft {
   const d = blankStudy();
+  // An opened study gets no rows it did not have.
+  d.program.variables = [];
+  d.program.rule = { all: [] };
   if (!isObject(raw)) return d;
   d.title = text(raw.title);
   if (typeof raw.description === 'string') d.description = raw.description;
@@ -91,6 +113,7 @@ function tidyCondition(c: Condition): Condition {
 /** The draft as a study file object. */
 export function toStudyFile(d: StudyDraft): Study {
   const data: Study['data'] = { path: d.data.path.trim() };
+  if (d.data.fileName) data.fileName = d.data.fileName;
   if (d.data.sheet) data.sheet = d.data.sheet;
   if (d.data.headerRow) data.headerRow = d.data.headerRow;
   if (d.data.join?.length) data.join = d.data.join;
@@ -102,7 +125,8 @@ export function toStudyFile(d: StudyDraft): Study {
   if (c.cluster) columns.cluster = c.cluster;
   columns.covariates = c.covariates ?? [];
   columns.controls = c.controls ?? [];
-  const out: Study = { fenceline: 1, title: d.title, program: tidyProgram(d.program), data, columns, settings: d.settings };
+  // An untitled study takes its program's name as its title.
+  const out: Study = { fenceline: 1, title: d.title.trim() || d.program.name.trim(), program: tidyProgram(d.program), data, columns, settings: d.settings };
   if (d.description) out.description = d.description;
   return out;
 }

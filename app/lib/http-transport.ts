@@ -2,12 +2,14 @@
 // header (never in the address, so it does not end up in logs or history). Long calls start a
 // job and poll its progress; cancelling posts to the job.
 
-import type { ApiResult, ProgressEvent } from '../../main/contract/api.ts';
-import type { CallOptions, Transport } from './api-client.ts';
+import { UPLOAD_ENDPOINT, UPLOAD_MAX_BYTES, UPLOAD_NAME_HEADER, type ApiResult, type ProgressEvent, type UploadedFile } from '../../main/contract/api.ts';
+import type { CallOptions, PickedFile, Transport } from './api-client.ts';
 
 export const TOKEN_HEADER = 'X-Fenceline-Token';
 
-type Fetch = (url: string, init: { method: string; headers: Record<string, string>; body?: string }) => Promise<{ status: number; json(): Promise<unknown> }>;
+type Fetch = (url: string, init: { method: string; headers: Record<string, string>; body?: string | Blob }) => Promise<{ status: number; json(): Promise<unknown> }>;
+
+const megabytes = (n: number) => `${Math.round(n / (1024 * 1024)).toLocaleString('en-US')} MB`;
 
 export interface JobStatus {
   state: 'running' | 'done';
@@ -44,6 +46,22 @@ export function httpTransport(token: string, fetchImpl: Fetch, base = ''): Trans
     }
   };
   return {
+    // The raw bytes of a picked file, its own name in a header (URI-encoded: names may hold any
+    // character); the host keeps the copy and answers where (main/contract/api.ts, UPLOAD_ENDPOINT).
+    async upload(file: PickedFile): Promise<ApiResult<UploadedFile>> {
+      if (file.size > UPLOAD_MAX_BYTES) {
+        return { ok: false, error: { kind: 'input', problems: [{ path: 'file', message: `${file.name} is ${megabytes(file.size)}; files up to ${megabytes(UPLOAD_MAX_BYTES)} can be opened here. Save the columns the study needs in a smaller file, or use the desktop app.` }] } };
+      }
+      const r = await fetchImpl(`${base}${UPLOAD_ENDPOINT}`, {
+        method: 'POST',
+        headers: { 'Content-Type': 'application/octet-stream', [TOKEN_HEADER]: token, [UPLOAD_NAME_HEADER]: encodeURIComponent(file.name) },
+        body: file.body,
+      });
+      if (r.status === 401 || r.status === 403) throw new Error('this page is not allowed to call the engine; open the address the terminal printed');
+      const answer = await r.json().catch(() => null) as ApiResult<UploadedFile> | null;
+      if (answer && typeof answer === 'object' && 'ok' in answer) return answer;
+      return { ok: false, error: { kind: 'input', problems: [{ path: 'file', message: `${file.name} could not be handed to Fenceline's engine (answer ${r.status}). Try again; if it keeps failing, type the file's location instead.` }] } };
+    },
     async call(method, args, options: CallOptions) {
       if (!options.onProgress && !options.signal && !options.onStarted) return (await post('/api/call', { method, args })) as ApiResult<unknown>;
       const { jobId } = (await post('/api/jobs', { method, args })) as { jobId: string };

@@ -36,14 +36,25 @@ export function assignProblems(problems: readonly Problem[], fieldPaths: Iterabl
 /** Every field the Rule screen shows for a program, by the JSON path the validators use. */
 export function programFieldPaths(p: Program, base = 'program'): string[] {
   const out = [`${base}.name`, `${base}.unit`, `${base}.variables`, `${base}.offer.ifEligible`, `${base}.offer.ifIneligible`, `${base}.offer`];
-  (Array.isArray(p.variables) ? p.variables : []).forEach((_v, i) => {
+  (Array.isArray(p.variables) ? p.variables : []).forEach((v, i) => {
     const at = `${base}.variables[${i}]`;
-    out.push(at, `${at}.key`, `${at}.label`, `${at}.type`, `${at}.column`, `${at}.unit`, `${at}.scale`, `${at}.values`);
+    out.push(at, `${at}.key`, `${at}.label`, `${at}.type`, `${at}.column`, `${at}.unit`);
+    // The form shows the scale of a continuous variable and the values of a discrete one; a
+    // problem with the other stays with the variable's row, so it is never hidden.
+    out.push(v?.type === 'discrete' ? `${at}.values` : `${at}.scale`);
   });
   const walk = (c: Condition, path: string) => {
     out.push(path);
     const kind = conditionKind(c);
-    if (kind === 'compare') out.push(`${path}.value`, `${path}.op`, `${path}.limit`);
+    if (kind === 'compare') {
+      out.push(`${path}.value`, `${path}.op`, `${path}.limit`);
+      const limit = (c as { limit?: unknown }).limit;
+      if (limit !== null && typeof limit === 'object' && !Array.isArray(limit)) {
+        const table = (limit as { table?: unknown }).table;
+        out.push(`${path}.limit.by`, `${path}.limit.else`);
+        if (table !== null && typeof table === 'object') for (const k of Object.keys(table)) out.push(tableRowPath(path, k));
+      }
+    }
     else if (kind === 'member') out.push(`${path}.value`, `${path}.in`);
     else if (kind === 'atLeast') out.push(`${path}.atLeast`);
     childrenOf(c).forEach((child, i) => walk(child, childPath(path, c, i)));
@@ -53,3 +64,10 @@ export function programFieldPaths(p: Program, base = 'program'): string[] {
 }
 
 export const problemsAt = (a: Assigned, path: string): Problem[] => a.byField.get(path) ?? [];
+
+/** The validators' path of one row of a limit table (`….limit.table["2"]`). */
+export const tableRowPath = (conditionPath: string, key: string): string =>
+  /^[A-Za-z_][A-Za-z0-9_]*$/.test(key) ? `${conditionPath}.limit.table.${key}` : `${conditionPath}.limit.table[${JSON.stringify(key)}]`;
+
+/** How many messages a screen shows for these assigned problems: every problem, once (claimed or listed at the top). */
+export const shownCount = (a: Assigned): number => [...a.byField.values()].reduce((n, l) => n + l.length, 0) + a.unclaimed.length;

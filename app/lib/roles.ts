@@ -71,7 +71,8 @@ export function setRole(d: StudyDraft, column: string, choice: RoleChoice): void
   switch (choice.role) {
     case 'id': c.id = column; break;
     case 'variable': { const v = d.program.variables.find((x) => x.key === choice.variable); if (v) v.column = column; break; }
-    case 'outcome': c.outcomes.push({ column, label: column }); break;
+    // The memo prints labels, never column names: the Data screen asks for one (outcomeLabelsMissing).
+    case 'outcome': c.outcomes.push({ column, label: '' }); break;
     case 'treatment': c.treatment = column; break;
     case 'decision': c.decision = column; break;
     case 'cluster': c.cluster = column; break;
@@ -107,3 +108,6 @@ export function applySuggestions(d: StudyDraft, columns: readonly PreviewColumn[
   }
   return applied;
 }
+
+/** Outcomes that have no name for the memo yet. */
+export const outcomeLabelsMissing = (d: StudyDraft): string[] => d.columns.outcomes.filter((o) => !(o.label ?? '').trim()).map((o) => o.column);

@@ -47,7 +47,8 @@ export function childPath(path: string, c: Condition, i: number): string {
 
 export function limitKind(c: Comparison): LimitKind {
   if (typeof c.limit === 'object' && c.limit !== null) return 'table';
-  return typeof c.limit === 'string' && !/^\s*-?\d+(\.\d+)?\s*$/.test(c.limit) ? 'expression' : 'number';
+  // An empty limit (not typed yet) is shown in the number field, waiting for its number.
+  return typeof c.limit === 'string' && c.limit.trim() !== '' && !/^\s*-?\d+(\.\d+)?\s*$/.test(c.limit) ? 'expression' : 'number';
 }
 
 /** Is the compared value a plain variable key (the form's variable picker) or an expression? */
@@ -55,9 +56,23 @@ export function valueIsVariable(c: Comparison, p: Program): boolean {
   return typeof c.value === 'string' && p.variables.some((v) => v.key === c.value);
 }
 
+/** Keys of the variables some comparison of the rule already compares. */
+function comparedKeys(c: Condition, out = new Set<string>()): Set<string> {
+  if (conditionKind(c) === 'compare' && typeof (c as Comparison).value === 'string') out.add((c as Comparison).value as string);
+  for (const child of childrenOf(c)) comparedKeys(child, out);
+  return out;
+}
+
+/**
+ * A new criterion compares the first continuous variable the rule does not compare yet (the
+ * analyst sees it and can change it) and has no limit until one is typed: an empty limit is
+ * shown as incomplete ("type a limit") and the rule cannot run until it is given.
+ */
 export function newComparison(p: Program): Comparison {
-  const v = p.variables.find((x) => x.type === 'continuous') ?? p.variables[0];
-  return { value: v?.key ?? '', op: '<=', limit: 0 };
+  const used = p.rule ? comparedKeys(p.rule) : new Set<string>();
+  const continuous = p.variables.filter((x) => x.type === 'continuous' && x.key);
+  const v = continuous.find((x) => !used.has(x.key)) ?? continuous[0] ?? p.variables.find((x) => x.key);
+  return { value: v?.key ?? '', op: '<=', limit: '' };
 }
 
 export function newMembership(p: Program): Membership {
@@ -83,14 +98,16 @@ export function setGroupKind(c: Condition, kind: GroupKind, k = 1): void {
 
 /** Change how a comparison's limit is given, carrying the current number over where it can. */
 export function setLimitKind(c: Comparison, kind: LimitKind, p: Program): void {
-  const current = typeof c.limit === 'number' ? c.limit : typeof c.limit === 'string' ? c.limit : (c.limit.else ?? 0);
-  if (kind === 'number') c.limit = typeof current === 'number' ? current : Number.isFinite(Number(current)) ? Number(current) : 0;
+  // Nothing is invented: a limit carries over only when one was typed, and a new table's rows
+  // (one per declared value) start empty, each shown as "type a limit".
+  const current = typeof c.limit === 'number' ? c.limit : typeof c.limit === 'string' ? c.limit : (c.limit.else ?? '');
+  if (kind === 'number') c.limit = typeof current === 'number' ? current : current.trim() !== '' && Number.isFinite(Number(current)) ? Number(current) : '';
   else if (kind === 'expression') c.limit = String(current);
   else {
     const by = p.variables.find((v) => v.type === 'discrete');
     const table: Record<string, number | string> = {};
-    for (const value of declaredValues(p, by?.key ?? '')) table[String(value)] = current;
-    const limit: LookupLimit = { by: by?.key ?? '', table, else: current };
+    for (const value of declaredValues(p, by?.key ?? '')) table[String(value)] = '';
+    const limit: LookupLimit = { by: by?.key ?? '', table };
     c.limit = limit;
   }
 }

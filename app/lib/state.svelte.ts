@@ -7,7 +7,9 @@ import type {
 } from '../../main/contract/api.ts';
 import type { Problem } from '../../main/contract/program.ts';
 import type { Results } from '../../main/contract/results.ts';
-import type { ApiClient } from './api-client.ts';
+import type { ApiClient, PickedFile } from './api-client.ts';
+import { guessJoinKey } from './data-files.ts';
+import { overallShare } from './progress.ts';
 import { blankStudy, normalizeDraft, slug, tidyProgram, toStudyFile, type StudyDraft } from './draft.ts';
 import { pathStatus, type StepId } from './steps.ts';
 
@@ -64,7 +66,7 @@ export class AppState {
       draft: this.draft,
       programCheck: this.programCheck,
       dataReport: this.dataReport,
-      dataReportCurrent: this.draft !== null && this.dataReportKey === this.draftKey(),
+      dataReportCurrent: this.draft !== null && this.dataReportKey === this.dataKey(),
       run: this.report,
       memoFiles: this.memoFiles,
       memoFormatsAvailable: (this.info?.memoFormats.length ?? 0) > 0,
@@ -74,6 +76,20 @@ export class AppState {
   draftKey(): string {
     return this.draft ? JSON.stringify(toStudyFile($state.snapshot(this.draft) as StudyDraft)) : '';
   }
+
+  /** What the data check depends on: the study less the words it prints (outcome names, labels, title) and the run settings. */
+  dataKey(): string {
+    if (!this.draft) return '';
+    const f = toStudyFile($state.snapshot(this.draft) as StudyDraft);
+    return JSON.stringify({
+      data: f.data, rule: f.program.rule, offer: f.program.offer,
+      variables: f.program.variables.map((v) => [v.key, v.type, v.column, v.values ?? null]),
+      columns: { ...f.columns, outcomes: f.columns.outcomes.map((o) => o.column) },
+    });
+  }
+
+  /** The run's bar: overall share done, never moving backwards within a run. */
+  runShare = $state(0);
 
   /** Resolve a data path of the draft for the main side (relative paths are relative to baseDir). */
   dataPath(p: string): string {
@@ -163,9 +179,20 @@ export class AppState {
     else { this.tryReport = null; this.tryProblems = r.error.problems; }
   }
 
+  /** A preview is being read (the newest request wins; older answers are dropped). */
+  previewLoading = $state(false);
+  private previewSeq = 0;
+  private previewAsked = '';
+
   async loadPreview(): Promise<void> {
     const d = this.draft;
     if (!d || !d.data.path.trim()) return;
+    // The same files asked for while they are being read: the answer on its way serves both.
+    const asked = JSON.stringify([this.dataPath(d.data.path.trim()), d.data.sheet ?? '', d.data.headerRow ?? 0, (d.data.join ?? []).map((j) => [j.path, j.sheet ?? '', j.headerRow ?? 0])]);
+    if (this.previewLoading && asked === this.previewAsked) return;
+    this.previewAsked = asked;
+    const mine = ++this.previewSeq;
+    this.previewLoading = true;
     this.busy = 'Reading the data file…';
     const program = tidyProgram($state.snapshot(d.program) as StudyDraft['program']);
     const r = await this.api.call('data.preview', {
@@ -179,6 +206,8 @@ export class AppState {
       if (jr.ok) joins[j.path] = jr.value;
       else problems.push(...jr.error.problems.map((p) => ({ ...p, path: `data.join[${i}]` })));
     }
+    if (mine !== this.previewSeq) return; // a newer file was chosen meanwhile
+    this.previewLoading = false;
     this.busy = null;
     this.progress = null;
     this.preview = r.ok ? r.value : null;
@@ -190,7 +219,7 @@ export class AppState {
   async checkData(): Promise<void> {
     if (!this.draft) return;
     this.busy = 'Checking the data against the study…';
-    const key = this.draftKey();
+    const key = this.dataKey();
     const r = await this.api.call('data.check', { study: toStudyFile($state.snapshot(this.draft) as StudyDraft), ...(this.baseDir ? { baseDir: this.baseDir } : {}) }, { onProgress: (p) => { this.progress = p; } });
     this.busy = null;
     this.progress = null;
@@ -199,14 +228,77 @@ export class AppState {
     else { this.dataReport = null; this.dataProblems = r.error.problems; }
   }
 
+  /** Files picked or dropped on the Data step (browser mode): each is handed to the host; the first becomes the data file when there is none, the others are linked by the unit ID. */
+  async addFiles(files: readonly PickedFile[]): Promise<Problem[]> {
+    const d = this.draft;
+    if (!d || files.length === 0) return [];
+    const problems: Problem[] = [];
+    const kept: Array<{ path: string; name: string }> = [];
+    for (const [i, f] of files.entries()) {
+      this.busy = `Opening ${f.name}${files.length > 1 ? ` (${i + 1} of ${files.length})` : ''}…`;
+      const r = await this.api.upload(f);
+      if (r.ok) kept.push({ path: r.value.path, name: r.value.name });
+      else problems.push(...r.error.problems.map((p) => ({ ...p, path: 'data.path' })));
+    }
+    this.busy = null;
+    if (kept.length === 0) return problems;
+    if (!d.data.path) {
+      const main = kept.shift()!;
+      this.setDataFile(main.path, main.name);
+      await this.loadPreview();
+    }
+    for (const k of kept) problems.push(...(await this.linkFile(k.path, k.name)));
+    if (kept.length) await this.loadPreview();
+    return problems;
+  }
+
+  /** The data file, chosen by path (typed, the native dialog, or a kept upload with its own name). */
+  setDataFile(path: string, fileName?: string): void {
+    const d = this.draft;
+    if (!d) return;
+    const same = this.dataPath(d.data.path) === this.dataPath(path);
+    d.data.path = path;
+    if (fileName) d.data.fileName = fileName; else delete d.data.fileName;
+    this.dataProblems = [];
+    if (same) return; // the same file again: read it again, keeping what is shown meanwhile
+    delete d.data.sheet;
+    delete d.data.headerRow;
+    this.dataReport = null;
+    this.preview = null;
+  }
+
+  /** Link a second file by the unit ID, the key column guessed from its names. */
+  async linkFile(path: string, fileName?: string): Promise<Problem[]> {
+    const d = this.draft;
+    if (!d) return [];
+    const name = fileName ?? path.split(/[\/]/).pop() ?? path;
+    const pr = await this.api.call('data.preview', { path: this.dataPath(path) });
+    if (!pr.ok) return pr.error.problems.map((p) => ({ ...p, path: 'data.join' }));
+    const key = guessJoinKey(pr.value, d.columns.id || (this.preview?.columns.find((c) => c.suggestion?.role === 'id')?.name ?? ''));
+    if (!key) return [{ path: 'data.join', message: `${name}: no column looks like the unit ID. Link it below and say which column holds the ID.` }];
+    d.data.join = [...(d.data.join ?? []), { path, key, ...(fileName ? { fileName } : {}) }];
+    return [];
+  }
+
+  /** Electron: the native open dialog. */
+  async chooseDataFile(): Promise<Problem[]> {
+    const r = await this.api.call('dialog.openFile', { purpose: 'data' });
+    if (!r.ok) return r.error.problems;
+    if (!r.value.path) return [];
+    this.setDataFile(r.value.path);
+    await this.loadPreview();
+    return [];
+  }
+
   async run(): Promise<void> {
     const d = this.draft;
     const info = this.info;
     if (!d || !info) return;
     this.runProblems = [];
     this.runState = 'running';
+    this.runShare = 0;
     this.progress = { stage: 'saving', done: 0, total: 1 };
-    const name = `${slug(d.title)}`;
+    const name = slug(d.title || d.program.name);
     // The study as run is kept in the workspace, next to the run's files; the analyst's own file is changed only by Save.
     const studyPath = join(info.studiesDir, name, 'study.json');
     const saved = await this.api.call('study.save', { path: studyPath, study: toStudyFile($state.snapshot(d) as StudyDraft), ...(this.baseDir ? { baseDir: this.baseDir } : {}) });
@@ -215,7 +307,7 @@ export class AppState {
     this.controller = new AbortController();
     const r = await this.api.call('study.evaluate', {
       studyPath: saved.value.path, outDir: join(info.runsDir, `${name}-${stamp()}`), formats: [...info.memoFormats], workspacePath: info.workspacePath,
-    }, { onProgress: (p) => { this.progress = p; }, signal: this.controller.signal });
+    }, { onProgress: (p) => { this.progress = p; this.runShare = overallShare(p, this.runShare); }, signal: this.controller.signal });
     this.controller = null;
     this.progress = null;
     if (!r.ok) { this.runState = r.error.kind === 'cancelled' ? 'cancelled' : 'failed'; this.runProblems = r.error.problems; return; }
@@ -223,7 +315,7 @@ export class AppState {
     this.results = r.value.results;
     this.memoFiles = r.value.files.filter((f) => MEMO_EXT.test(f));
     this.runState = 'done';
-    this.notice = `The run finished: ${r.value.results.study.rowsUsed.toLocaleString('en-US')} units used. Files are in ${r.value.outDir}.`;
+    this.notice = `The run finished: ${r.value.results.study.rowsUsed.toLocaleString('en-US')} unit${r.value.results.study.rowsUsed === 1 ? '' : 's'} used. Files are in ${r.value.outDir}.`;
     void this.refreshRecent();
   }
 
@@ -243,7 +335,7 @@ export class AppState {
     if (!r.ok) { this.memoProblems = r.error.problems; return; }
     this.memoFiles = r.value.files.filter((f) => MEMO_EXT.test(f));
     const n = r.value.files.length;
-    this.notice = `Wrote ${n.toLocaleString('en-US')} memo file${n === 1 ? '' : 's'} to ${r.value.outDir}.`;
+    this.notice = `Wrote ${n} file${n === 1 ? '' : 's'} to ${r.value.outDir}: ${r.value.files.map((f) => f.split(/[\\/]/).pop()).join(', ')}.`;
   }
 
   async openRecordedRun(runId: number): Promise<Problem[]> {

@@ -40,6 +40,7 @@ export function pathStatus(s: PathState): StepStatus[] {
     if (!d.columns.id) data.push('choose the ID column');
     if (d.program.variables.some((v) => !v.column)) data.push('choose a column for every rule input');
     if (d.columns.outcomes.length === 0) data.push('choose at least one outcome');
+    else if (d.columns.outcomes.some((o) => !(o.label ?? '').trim())) data.push('name each outcome for the memo');
     if (!s.dataReport || !s.dataReportCurrent) data.push('check the data');
   }
   const run: string[] = s.run ? [] : ['run the study'];

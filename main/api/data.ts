@@ -10,7 +10,7 @@ import { CellKind, type RawColumn } from '../data/types.ts';
 import { getOwn, isPlainObject } from '../rules/json-read.ts';
 import { checkValidatedStudy } from './evaluate.ts';
 import { validateStudy } from '../studyfile/validate.ts';
-import { suggestRoles, type ColumnFacts, type ProgramColumns } from './column-roles.ts';
+import { suggestRoles, type ColumnFacts, type ProgramColumns } from '../data/suggest-roles.ts';
 import { refuse, type CallContext } from './context.ts';
 
 const PREVIEW_ROWS = 20;
@@ -50,7 +50,8 @@ function programColumns(program: unknown): ProgramColumns | null {
   const variables = vars.flatMap((v) => {
     if (!isPlainObject(v)) return [];
     const key = getOwn(v, 'key'), column = getOwn(v, 'column'), label = getOwn(v, 'label');
-    return typeof key === 'string' && typeof column === 'string' && column.trim() !== '' ? [{ key, column, label: typeof label === 'string' && label ? label : key }] : [];
+    // A variable whose column is not chosen yet is matched by its key and label.
+    return typeof key === 'string' && key !== '' ? [{ key, column: typeof column === 'string' ? column : '', label: typeof label === 'string' && label ? label : key }] : [];
   });
   return { variables };
 }

@@ -42,7 +42,7 @@ function criteriaOf(compiled: CompiledProgram, program: Program): CriterionInfo[
 }
 
 export async function checkProgram(args: ProgramCheckArgs): Promise<ApiResult<ProgramCheck>> {
-  const checked = validateProgram(args.program, 'program');
+  const checked = validateProgram(args.program, 'program', { forms: true });
   if (!checked.ok) return { ok: true, value: { valid: false, problems: checked.problems, reading: null, offerReading: null, criteria: [] } };
   const program = checked.value;
   const compiled = lowerValidatedProgram(program);
@@ -72,7 +72,7 @@ function typedNumber(raw: unknown): number | 'not a number' {
 }
 
 export async function tryUnit(args: TryUnitArgs): Promise<ApiResult<TryUnitReport>> {
-  const checked = validateProgram(args.program, 'program');
+  const checked = validateProgram(args.program, 'program', { forms: true });
   if (!checked.ok) return refuse(checked.problems);
   if (!isPlainObject(args.values)) return refuse([{ path: 'values', message: `The values must be given by variable; found ${describeGiven(args.values)}.` }]);
   const program = checked.value;

@@ -6,6 +6,8 @@ import type { Program } from '../rules/types.ts';
 export interface JoinSource {
   /** Path relative to the study file. */
   path: string;
+  /** The file's own name as the analyst picked it, when `path` is a stored copy (an upload in browser mode). */
+  fileName?: string;
   sheet?: string;
   /** Column of this source holding the unit ID. */
   key: string;
@@ -44,6 +46,8 @@ export interface StudySettings {
 
 export interface StudyData {
   path: string;
+  /** The file's own name as the analyst picked it, when `path` is a stored copy (an upload in browser mode). */
+  fileName?: string;
   sheet?: string;
   headerRow?: number;
   join?: JoinSource[];

@@ -62,6 +62,8 @@ interface DiscreteValue { value: number; label?: string }
 interface VarInfo {
   key: string;
   path: string;
+  /** The variable's label, for messages in form words. */
+  label?: string;
   type?: 'continuous' | 'discrete';
   range?: [number, number];
   values?: DiscreteValue[];
@@ -78,7 +80,23 @@ interface Ctx {
   variablesUsable: boolean;
   /** Checked expressions by source and restriction: a formula repeated many times is checked once. */
   expressionCache: Map<string, { messages: string[]; used: Set<string> | undefined }>;
+  /**
+   * Messages for the app's forms rather than the study file: fields named as the forms name them,
+   * no JSON examples or paths; a variable's data column may still be unchosen (it is chosen later,
+   * with the data).
+   */
+  forms: boolean;
 }
+
+export interface ValidateOptions {
+  /** Word the messages for the app's forms (see Ctx.forms). */
+  forms?: boolean;
+}
+
+/** The file's words or the form's words, as the context asks. */
+const say = (ctx: Ctx, file: string, form: string): string => (ctx.forms ? form : file);
+/** How a discrete variable is named in form words. */
+const named = (v: VarInfo): string => v.label ?? v.key;
 
 function report(ctx: Ctx, path: string, message: string): void {
   if (ctx.problems.length < MAX_PROBLEMS) ctx.problems.push({ path, message });
@@ -99,34 +117,34 @@ function unknownFields(ctx: Ctx, o: Obj, path: string, allowed: readonly string[
   for (const p of unknownFieldProblems(o, path, allowed, what)) report(ctx, p.path, p.message);
 }
 
-function requireField(ctx: Ctx, o: Obj, path: string, key: string, what: string, example: string): unknown {
+function requireField(ctx: Ctx, o: Obj, path: string, key: string, what: string, example: string, form?: string): unknown {
   if (!has(o, key) || get(o, key) === undefined) {
-    report(ctx, fieldPath(path, key), `${what} is missing its "${key}": ${example}`);
+    report(ctx, fieldPath(path, key), form !== undefined && ctx.forms ? form : `${what} is missing its "${key}": ${example}`);
     return undefined;
   }
   return get(o, key);
 }
 
-function checkText(ctx: Ctx, v: unknown, path: string, what: string): v is string {
+function checkText(ctx: Ctx, v: unknown, path: string, what: string, formEmpty?: string): v is string {
   if (typeof v !== 'string') {
     report(ctx, path, `${what} must be text in quotes; found ${given(v)}`);
     return false;
   }
   if (v.trim() === '') {
-    report(ctx, path, `${what} is empty: write it out`);
+    report(ctx, path, formEmpty !== undefined && ctx.forms ? formEmpty : `${what} is empty: write it out`);
     return false;
   }
   return true;
 }
 
 /** Arrays are checked for length before any element is touched (sparse giants never hang us). */
-function checkList(ctx: Ctx, v: unknown, path: string, what: string, example: string): v is unknown[] {
+function checkList(ctx: Ctx, v: unknown, path: string, what: string, example: string, formEmpty?: string): v is unknown[] {
   if (!Array.isArray(v)) {
     report(ctx, path, `${what} must be a list in square brackets, e.g. ${example}; found ${given(v)}`);
     return false;
   }
   if (v.length === 0) {
-    report(ctx, path, `${what} is an empty list: give at least one entry, e.g. ${example}`);
+    report(ctx, path, formEmpty !== undefined && ctx.forms ? formEmpty : `${what} is an empty list: give at least one entry, e.g. ${example}`);
     return false;
   }
   if (v.length > MAX_LIST_LENGTH) {
@@ -141,25 +159,27 @@ function checkList(ctx: Ctx, v: unknown, path: string, what: string, example: st
 const NUMERIC_TEXT = /^[+-]?(\d+(\.\d*)?|\.\d+)([eE][+-]?\d+)?$/;
 
 /** What a table key or an `in` entry written as text means for a discrete variable. */
-function resolveDiscrete(text: string, v: VarInfo): { value: number } | { error: string } {
+function resolveDiscrete(text: string, v: VarInfo, forms = false): { value: number } | { error: string } {
   const byLabel = v.values?.find((d) => d.label === text);
   if (byLabel !== undefined) return { value: byLabel.value };
   if (NUMERIC_TEXT.test(text)) {
     const value = Number(text);
     if (!Number.isFinite(value)) return { error: `${quote(text)} is too large to be a value of "${v.key}"` };
-    return checkDeclared(value, v);
+    return checkDeclared(value, v, forms);
   }
   const labels = (v.values ?? []).flatMap((d) => (d.label === undefined ? [] : [d.label]));
   const guess = closest(text, labels);
-  if (guess !== undefined) return { error: `${quote(text)} is not a value of "${v.key}": did you mean the label "${guess}"?` };
+  if (guess !== undefined) return { error: forms ? `${quote(text)} is not a value of ${named(v)}: did you mean ${guess}?` : `${quote(text)} is not a value of "${v.key}": did you mean the label "${guess}"?` };
+  if (forms) return { error: `${quote(text)} is not a value of ${named(v)}: type one of its values${labels.length > 0 ? ` or labels (${labels.slice(0, 6).join(', ')})` : ', such as 1'}` };
   const hint = labels.length > 0
     ? `write one of its values as a number in quotes ("1") or one of its labels (${labels.slice(0, 6).map((l) => `"${l}"`).join(', ')})`
     : `write one of its values as a number in quotes, e.g. "1"`;
   return { error: `${quote(text)} is not a value of "${v.key}": ${hint}` };
 }
 
-function checkDeclared(value: number, v: VarInfo): { value: number } | { error: string } {
+function checkDeclared(value: number, v: VarInfo, forms = false): { value: number } | { error: string } {
   if (v.values !== undefined && !v.values.some((d) => d.value === value)) {
+    if (forms) return { error: `${value} is not one of the values listed for ${named(v)} (${formatNumberList(v.values.map((d) => d.value))}): use a listed value or add it to the variable's values` };
     return {
       error: `${value} is not one of the values declared for "${v.key}" (${formatNumberList(v.values.map((d) => d.value))}, see ${v.path}.values): use a declared value or add it there`,
     };
@@ -185,22 +205,28 @@ function checkVariable(ctx: Ctx, v: unknown, path: string): VarInfo | undefined 
   }
   unknownFields(ctx, v, path, VARIABLE_FIELDS, 'a variable');
   let info: VarInfo | undefined;
-  const key = requireField(ctx, v, path, 'key', `this ${what}`, 'give it a short key used in formulas, e.g. "income"');
+  const key = requireField(ctx, v, path, 'key', `this ${what}`, 'give it a short key used in formulas, e.g. "income"', 'Type a short name used in calculations, such as income.');
   if (key !== undefined) {
     if (typeof key !== 'string') {
       report(ctx, fieldPath(path, 'key'), `a variable key must be text in quotes, e.g. "income"; found ${given(key)}`);
+    } else if (key.trim() === '' && ctx.forms) {
+      report(ctx, fieldPath(path, 'key'), 'Type a short name used in calculations, such as income.');
     } else if (!IDENTIFIER.test(key)) {
-      report(ctx, fieldPath(path, 'key'),
-        `the key ${quote(key, 40)} cannot be used in formulas: start with a letter or _, then only letters, digits and _ (e.g. "${suggestIdentifier(key)}")`);
+      report(ctx, fieldPath(path, 'key'), say(ctx,
+        `the key ${quote(key, 40)} cannot be used in formulas: start with a letter or _, then only letters, digits and _ (e.g. "${suggestIdentifier(key)}")`,
+        `The short name ${quote(key, 40)} cannot be used in calculations: start with a letter, then only letters, digits and _ (such as ${suggestIdentifier(key)}).`));
     } else if (key === 'min' || key === 'max') {
-      report(ctx, fieldPath(path, 'key'), `"${key}" is the name of a formula function: choose another key, e.g. "${key}_value"`);
+      report(ctx, fieldPath(path, 'key'), say(ctx, `"${key}" is the name of a formula function: choose another key, e.g. "${key}_value"`,
+        `${key} is a calculation word: choose another short name, such as ${key}_value.`));
     } else {
       info = { key, path };
     }
   }
-  const label = requireField(ctx, v, path, 'label', `this ${what}`, 'give it the words used for it in reports, e.g. "Annual household income"');
-  if (label !== undefined) checkText(ctx, label, fieldPath(path, 'label'), 'a variable label');
-  const column = requireField(ctx, v, path, 'column', `this ${what}`, 'give the name of the data column that holds it, e.g. "HH_INCOME"');
+  const label = requireField(ctx, v, path, 'label', `this ${what}`, 'give it the words used for it in reports, e.g. "Annual household income"', 'Type the words the memo uses for it, such as Annual household income.');
+  if (label !== undefined && checkText(ctx, label, fieldPath(path, 'label'), 'a variable label', 'Type the words the memo uses for it, such as Annual household income.') && info !== undefined) info.label = label;
+  // In the app the column is chosen with the data, after the rule: an unchosen one is not a problem of the rule.
+  const column = ctx.forms && (get(v, 'column') === undefined || get(v, 'column') === '') ? undefined
+    : requireField(ctx, v, path, 'column', `this ${what}`, 'give the name of the data column that holds it, e.g. "HH_INCOME"');
   if (column !== undefined) checkText(ctx, column, fieldPath(path, 'column'), 'a column name');
   if (has(v, 'unit') && get(v, 'unit') !== undefined) checkText(ctx, get(v, 'unit'), fieldPath(path, 'unit'), 'a unit');
 
@@ -225,8 +251,9 @@ function checkVariable(ctx: Ctx, v: unknown, path: string): VarInfo | undefined 
     } else if (typeof scale === 'string' && NUMERIC_TEXT.test(scale.trim())) {
       report(ctx, fieldPath(path, 'scale'), `write the scale as a number without quotes (${scale.trim()})`);
     } else if (typeof scale !== 'number' || !Number.isFinite(scale) || scale <= 0) {
-      report(ctx, fieldPath(path, 'scale'),
-        `the scale must be a positive number (the distance along this variable counted as one unit, e.g. 10000 for income in dollars); found ${given(scale)}`);
+      report(ctx, fieldPath(path, 'scale'), say(ctx,
+        `the scale must be a positive number (the distance along this variable counted as one unit, e.g. 10000 for income in dollars); found ${given(scale)}`,
+        `Type the scale as a positive number (the distance counted as one step, such as 10000 for income in dollars), or leave it empty to use the standard deviation.`));
     }
   }
 
@@ -258,7 +285,7 @@ function checkVariable(ctx: Ctx, v: unknown, path: string): VarInfo | undefined 
 }
 
 function checkValues(ctx: Ctx, values: unknown, path: string): DiscreteValue[] | undefined {
-  if (!checkList(ctx, values, path, '"values"', '[1, 2, 3] or [{"value": 1, "label": "North"}]')) return undefined;
+  if (!checkList(ctx, values, path, '"values"', '[1, 2, 3] or [{"value": 1, "label": "North"}]', 'List the possible values, separated by commas, such as 1, 2, 3 or 1=North.')) return undefined;
   const out: DiscreteValue[] = [];
   let ok = true;
   const seenValue = new Map<number, number>();
@@ -278,22 +305,24 @@ function checkValues(ctx: Ctx, values: unknown, path: string): DiscreteValue[] |
       const labelOk = label !== undefined && checkText(ctx, label, fieldPath(p, 'label'), 'a value label');
       if (valueOk && labelOk) entry = { value: value as number, label: label as string };
     } else {
-      report(ctx, p, `each declared value must be a number or {"value": 1, "label": "North"}; found ${given(item)}`);
+      report(ctx, say(ctx, p, path), say(ctx, `each declared value must be a number or {"value": 1, "label": "North"}; found ${given(item)}`,
+        `${typeof item === 'string' ? quote(item, 40) : given(item)} is not a value: write numbers, or number=label such as 1=Single.`));
     }
     if (entry === undefined) { ok = false; continue; }
     const firstValue = seenValue.get(entry.value);
     if (firstValue !== undefined) {
-      report(ctx, p, `the value ${entry.value} is already declared at ${indexPath(path, firstValue)}: list each value once`);
+      report(ctx, say(ctx, p, path), say(ctx, `the value ${entry.value} is already declared at ${indexPath(path, firstValue)}: list each value once`, `${entry.value} is listed twice: list each value once.`));
       ok = false;
     } else seenValue.set(entry.value, i);
     if (entry.label !== undefined) {
       const firstLabel = seenLabel.get(entry.label);
       if (firstLabel !== undefined) {
-        report(ctx, fieldPath(p, 'label'), `the label ${quote(entry.label, 40)} is already used at ${indexPath(path, firstLabel)}: give each value its own label`);
+        report(ctx, say(ctx, fieldPath(p, 'label'), path), say(ctx, `the label ${quote(entry.label, 40)} is already used at ${indexPath(path, firstLabel)}: give each value its own label`,
+          `The label ${quote(entry.label, 40)} is used twice: give each value its own label.`));
         ok = false;
       } else seenLabel.set(entry.label, i);
       if (NUMERIC_TEXT.test(entry.label) && Number(entry.label) !== entry.value) {
-        report(ctx, fieldPath(p, 'label'),
+        report(ctx, say(ctx, fieldPath(p, 'label'), path),
           `the label ${quote(entry.label)} reads as the number ${Number(entry.label)} but labels the value ${entry.value}: use words, so table keys stay unambiguous`);
         ok = false;
       }
@@ -309,6 +338,10 @@ function checkValues(ctx: Ctx, values: unknown, path: string): DiscreteValue[] |
 type Restriction = Map<string, number[]>;
 
 function checkExpression(ctx: Ctx, src: unknown, path: string, restrict?: Restriction): Set<string> | undefined {
+  if (ctx.forms && typeof src === 'string' && src.trim() === '') {
+    report(ctx, path, path.endsWith('.value') ? 'Choose what is compared.' : 'Type a limit.');
+    return undefined;
+  }
   if (typeof src !== 'number' && typeof src !== 'string') return checkExpressionUncached(ctx, src, path, restrict);
   const restriction = restrict === undefined ? '' : JSON.stringify([...restrict]);
   const key = `${typeof src}:${String(src)}|${restriction}`;
@@ -346,8 +379,9 @@ function checkExpressionUncached(ctx: Ctx, src: unknown, path: string, restrict?
     const guess = closest(key, ctx.vars.keys());
     const hint = guess !== undefined
       ? `did you mean "${guess}"?`
-      : ctx.vars.size > 0 ? `the declared variables are: ${[...ctx.vars.keys()].slice(0, 12).join(', ')}` : 'declare it in program.variables';
-    report(ctx, path, `"${key}" (at position ${where + 1} in ${quote(String(src))}) is not a declared variable: ${hint}`);
+      : ctx.vars.size > 0 ? `the declared variables are: ${[...ctx.vars.keys()].slice(0, 12).join(', ')}` : say(ctx, 'declare it in program.variables', 'add it under “Variables the rule reads”');
+    report(ctx, path, say(ctx, `"${key}" (at position ${where + 1} in ${quote(String(src))}) is not a declared variable: ${hint}`,
+      `${key === String(src).trim() ? `“${key}” is not a number or a variable` : `“${key}” (at position ${where + 1} in ${quote(String(src))}) is not a variable of the rule`}: ${guess !== undefined ? `did you mean ${guess}? ` : ''}type a number${ctx.vars.size > 0 ? `, or a calculation with ${[...ctx.vars.keys()].slice(0, 12).join(', ')}` : ''}.`));
   }
   if (known) checkDivisions(ctx, parsed.node, String(src), path, restrict ?? new Map());
   return used;
@@ -601,7 +635,7 @@ function checkCondition(ctx: Ctx, c: unknown, path: string, depth: number): Set<
       const key = forms[0] === 'all' ? 'all' : 'any';
       const list = get(c, key);
       const p = fieldPath(path, key);
-      if (checkList(ctx, list, p, `"${key}"`, `{"${key}": [{"value": "age", "op": ">=", "limit": 65}, ...]}`)) {
+      if (checkList(ctx, list, p, `"${key}"`, `{"${key}": [{"value": "age", "op": ">=", "limit": 65}, ...]}`, 'Add at least one criterion to this group.')) {
         for (let i = 0; i < list.length; i += 1) add(checkCondition(ctx, list[i], indexPath(p, i), depth + 1));
       }
       break;
@@ -609,13 +643,15 @@ function checkCondition(ctx: Ctx, c: unknown, path: string, depth: number): Set<
     case 'atLeast': {
       const k = requireField(ctx, c, path, 'atLeast', 'this "at least k of" condition', 'write {"atLeast": 2, "of": [...]}');
       const of = requireField(ctx, c, path, 'of', 'this "at least k of" condition', 'write {"atLeast": 2, "of": [...]}');
-      const listOk = of !== undefined && checkList(ctx, of, fieldPath(path, 'of'), '"of"', '{"atLeast": 2, "of": [{...}, {...}, {...}]}');
+      const listOk = of !== undefined && checkList(ctx, of, fieldPath(path, 'of'), '"of"', '{"atLeast": 2, "of": [{...}, {...}, {...}]}', 'Add at least one criterion to this group.');
       if (k !== undefined) {
         if (typeof k !== 'number' || !Number.isInteger(k) || k < 1) {
-          report(ctx, fieldPath(path, 'atLeast'), `"atLeast" must be a whole number of conditions, 1 or more; found ${given(k)}`);
+          report(ctx, fieldPath(path, 'atLeast'), say(ctx, `"atLeast" must be a whole number of conditions, 1 or more; found ${given(k)}`, 'Type how many as a whole number, 1 or more.'));
         } else if (listOk && k > (of as unknown[]).length) {
-          report(ctx, fieldPath(path, 'atLeast'),
-            `"atLeast" is ${k} but "of" lists only ${(of as unknown[]).length} condition${(of as unknown[]).length === 1 ? '' : 's'}, so it could never hold: lower it or add conditions`);
+          const n = (of as unknown[]).length;
+          report(ctx, fieldPath(path, 'atLeast'), say(ctx,
+            `"atLeast" is ${k} but "of" lists only ${n} condition${n === 1 ? '' : 's'}, so it could never hold: lower it or add conditions`,
+            `“How many” is ${k} but the group has only ${n} criteri${n === 1 ? 'on' : 'a'}, so no one could qualify: lower it or add criteria.`));
         }
       }
       if (listOk) {
@@ -640,9 +676,9 @@ function checkCondition(ctx: Ctx, c: unknown, path: string, depth: number): Set<
 function checkComparison(ctx: Ctx, c: Obj, path: string): Set<string> {
   const used = new Set<string>();
   const example = 'e.g. {"value": "income", "op": "<=", "limit": 30000}';
-  const value = requireField(ctx, c, path, 'value', 'this comparison', `say what is compared, ${example}`);
-  const op = requireField(ctx, c, path, 'op', 'this comparison', `give one of < <= > >= == !=, ${example}`);
-  const limit = requireField(ctx, c, path, 'limit', 'this comparison', `give the number or formula it is compared with, ${example}`);
+  const value = requireField(ctx, c, path, 'value', 'this comparison', `say what is compared, ${example}`, 'Choose what is compared.');
+  const op = requireField(ctx, c, path, 'op', 'this comparison', `give one of < <= > >= == !=, ${example}`, 'Choose how it is compared.');
+  const limit = requireField(ctx, c, path, 'limit', 'this comparison', `give the number or formula it is compared with, ${example}`, 'Type a limit: this criterion counts only once it has one.');
   let complete = value !== undefined && limit !== undefined;
   if (value !== undefined) {
     const vs = checkExpression(ctx, value, fieldPath(path, 'value'));
@@ -661,7 +697,8 @@ function checkComparison(ctx: Ctx, c: Obj, path: string): Set<string> {
     if (ls === undefined) complete = false; else for (const k of ls) used.add(k);
   }
   if (complete && used.size === 0) {
-    report(ctx, path, 'this comparison uses no variable, so it gives the same answer for every unit: compare a variable or a formula over variables');
+    report(ctx, path, say(ctx, 'this comparison uses no variable, so it gives the same answer for every unit: compare a variable or a formula over variables',
+      'This criterion uses no variable, so it gives the same answer for every unit: compare a variable, or a calculation with variables.'));
   }
   return used;
 }
@@ -673,24 +710,25 @@ function checkMembership(ctx: Ctx, c: Obj, path: string): Set<string> {
   let v: VarInfo | undefined;
   if (value !== undefined) {
     const p = fieldPath(path, 'value');
-    if (typeof value !== 'string') {
-      report(ctx, p, `"in" checks the value of one discrete variable: write its key in quotes, e.g. "region"; found ${given(value)}`);
+    if (typeof value !== 'string' || (ctx.forms && value === '')) {
+      report(ctx, p, say(ctx, `"in" checks the value of one discrete variable: write its key in quotes, e.g. "region"; found ${given(value)}`, 'Choose the variable whose value is checked.'));
     } else if (!IDENTIFIER.test(value)) {
       report(ctx, p, `"in" checks the value of one discrete variable, not a formula: write just its key (found ${quote(value)}); for formulas use a comparison`);
     } else if (!ctx.vars.has(value)) {
       const guess = closest(value, ctx.vars.keys());
-      if (ctx.variablesUsable) report(ctx, p, `"${value}" is not a declared variable${guess !== undefined ? `: did you mean "${guess}"?` : ': declare it in program.variables'}`);
+      if (ctx.variablesUsable) report(ctx, p, `"${value}" is not a declared variable${guess !== undefined ? `: did you mean "${guess}"?` : say(ctx, ': declare it in program.variables', ': add it under “Variables the rule reads”')}`);
     } else {
       v = ctx.vars.get(value)!;
       used.add(value);
       if (v.type === 'continuous') {
-        report(ctx, p, `"in" lists exact values, which suits only discrete variables; "${value}" is continuous: use comparisons such as {"value": "${value}", "op": ">=", "limit": ...}`);
+        report(ctx, p, say(ctx, `"in" lists exact values, which suits only discrete variables; "${value}" is continuous: use comparisons such as {"value": "${value}", "op": ">=", "limit": ...}`,
+          `“Is one of” lists exact values, which suits only discrete variables; ${named(v)} is continuous: use a criterion with a comparison instead.`));
         v = undefined;
       } else if (v.type === undefined) v = undefined;
     }
   }
   const p = fieldPath(path, 'in');
-  if (!checkList(ctx, list, p, '"in"', '{"value": "region", "in": [1, 4, 7]}')) return used;
+  if (!checkList(ctx, list, p, '"in"', '{"value": "region", "in": [1, 4, 7]}', 'List at least one value, separated by commas, such as 1, 4, 7.')) return used;
   const seen = new Map<number, number>();
   for (let i = 0; i < list.length; i += 1) {
     const item: unknown = list[i];
@@ -698,9 +736,9 @@ function checkMembership(ctx: Ctx, c: Obj, path: string): Set<string> {
     let meaning: { value: number } | { error: string } | undefined;
     if (typeof item === 'number') {
       if (!Number.isFinite(item)) { report(ctx, ip, `${item} is not a usable value: write a finite number`); continue; }
-      meaning = v !== undefined ? checkDeclared(item, v) : { value: item };
+      meaning = v !== undefined ? checkDeclared(item, v, ctx.forms) : { value: item };
     } else if (typeof item === 'string') {
-      if (v !== undefined) meaning = resolveDiscrete(item, v);
+      if (v !== undefined) meaning = resolveDiscrete(item, v, ctx.forms);
       else if (NUMERIC_TEXT.test(item)) meaning = { value: Number(item) };
     } else {
       report(ctx, ip, `each entry of "in" must be a value (a number) or a declared label in quotes; found ${given(item)}`);
@@ -709,7 +747,7 @@ function checkMembership(ctx: Ctx, c: Obj, path: string): Set<string> {
     if (meaning === undefined) continue;
     if ('error' in meaning) { report(ctx, ip, meaning.error); continue; }
     const first = seen.get(meaning.value);
-    if (first !== undefined) report(ctx, ip, `this entry means ${meaning.value}, already listed at ${indexPath(p, first)}: list each value once`);
+    if (first !== undefined) report(ctx, ip, say(ctx, `this entry means ${meaning.value}, already listed at ${indexPath(p, first)}: list each value once`, `${meaning.value} is listed twice: list each value once.`));
     else seen.set(meaning.value, i);
   }
   return used;
@@ -720,23 +758,24 @@ function checkLookup(ctx: Ctx, l: Obj, path: string): Set<string> | undefined {
   let complete = true;
   unknownFields(ctx, l, path, LOOKUP_FIELDS, 'a lookup limit');
   const example = 'e.g. {"by": "size", "table": {"1": 21000, "2": 28000}, "else": "28000 + 7000 * (size - 2)"}';
-  const by = requireField(ctx, l, path, 'by', 'this lookup limit', `name the discrete variable that picks the limit, ${example}`);
-  const table = requireField(ctx, l, path, 'table', 'this lookup limit', `give the limits for each value, ${example}`);
+  const by = requireField(ctx, l, path, 'by', 'this lookup limit', `name the discrete variable that picks the limit, ${example}`, 'Choose the variable the limit depends on.');
+  const table = requireField(ctx, l, path, 'table', 'this lookup limit', `give the limits for each value, ${example}`, 'Add at least one row to the table.');
   let v: VarInfo | undefined;
   if (by !== undefined) {
     const p = fieldPath(path, 'by');
-    if (typeof by !== 'string') {
-      report(ctx, p, `"by" must be the key of a discrete variable in quotes, e.g. "size"; found ${given(by)}`);
+    if (typeof by !== 'string' || (ctx.forms && by === '')) {
+      report(ctx, p, say(ctx, `"by" must be the key of a discrete variable in quotes, e.g. "size"; found ${given(by)}`, 'Choose the variable the limit depends on.'));
       complete = false;
     } else if (!ctx.vars.has(by)) {
       const guess = closest(by, ctx.vars.keys());
-      if (ctx.variablesUsable) report(ctx, p, `"${by}" is not a declared variable${guess !== undefined ? `: did you mean "${guess}"?` : ': declare it in program.variables'}`);
+      if (ctx.variablesUsable) report(ctx, p, `"${by}" is not a declared variable${guess !== undefined ? `: did you mean "${guess}"?` : say(ctx, ': declare it in program.variables', ': add it under “Variables the rule reads”')}`);
       complete = false;
     } else {
       used.add(by);
       const info = ctx.vars.get(by)!;
       if (info.type === 'continuous') {
-        report(ctx, p, `a lookup picks its limit by a discrete variable; "${by}" is continuous: write the limit as a formula over "${by}" instead`);
+        report(ctx, p, say(ctx, `a lookup picks its limit by a discrete variable; "${by}" is continuous: write the limit as a formula over "${by}" instead`,
+          `A table picks its limit by a discrete variable; ${named(info)} is continuous: give the limit as a calculation with ${by} instead.`));
       } else if (info.type === 'discrete') v = info;
     }
   }
@@ -749,7 +788,7 @@ function checkLookup(ctx: Ctx, l: Obj, path: string): Set<string> | undefined {
     } else {
       const keys = Object.keys(table);
       if (keys.length === 0) {
-        report(ctx, p, 'the table is empty: give at least one value: limit pair, e.g. {"1": 21000}');
+        report(ctx, p, say(ctx, 'the table is empty: give at least one value: limit pair, e.g. {"1": 21000}', 'Add at least one row to the table.'));
       } else if (keys.length > MAX_LIST_LENGTH) {
         report(ctx, p, `the table has ${keys.length} entries; the limit is ${MAX_LIST_LENGTH}`);
         complete = false;
@@ -759,13 +798,13 @@ function checkLookup(ctx: Ctx, l: Obj, path: string): Set<string> | undefined {
           const kp = `${p}[${JSON.stringify(key)}]`;
           let restrict: Restriction | undefined;
           if (v !== undefined) {
-            const meaning = resolveDiscrete(key, v);
+            const meaning = resolveDiscrete(key, v, ctx.forms);
             if ('error' in meaning) {
-              report(ctx, kp, `table key ${meaning.error}`);
+              report(ctx, kp, say(ctx, `table key ${meaning.error}`, `In the table, ${meaning.error}.`));
             } else {
               const first = meaningOf.get(meaning.value);
               if (first !== undefined) {
-                report(ctx, kp, `table keys ${quote(first)} and ${quote(key)} both mean ${meaning.value}: keep one`);
+                report(ctx, kp, say(ctx, `table keys ${quote(first)} and ${quote(key)} both mean ${meaning.value}: keep one`, `The table has two rows for ${meaning.value} (${quote(first)} and ${quote(key)}): keep one.`));
               } else {
                 meaningOf.set(meaning.value, key);
                 covered.push(meaning.value);
@@ -789,8 +828,9 @@ function checkLookup(ctx: Ctx, l: Obj, path: string): Set<string> | undefined {
   } else if (v?.values !== undefined && table !== undefined && isPlainObject(table)) {
     const missing = v.values.map((d) => d.value).filter((x) => !covered.includes(x));
     if (missing.length > 0) {
-      report(ctx, path,
-        `the table has no limit for ${v.key} ${formatNumberList(missing)} (declared in ${v.path}.values) and there is no "else": add ${missing.length === 1 ? 'an entry' : 'entries'} or an "else" formula`);
+      report(ctx, path, say(ctx,
+        `the table has no limit for ${v.key} ${formatNumberList(missing)} (declared in ${v.path}.values) and there is no "else": add ${missing.length === 1 ? 'an entry' : 'entries'} or an "else" formula`,
+        `The table has no limit when ${named(v)} is ${formatNumberList(missing)}: add ${missing.length === 1 ? 'a row' : 'rows'}, or a limit for any other value.`));
     }
   }
   return complete ? used : undefined;
@@ -801,10 +841,16 @@ function checkLookup(ctx: Ctx, l: Obj, path: string): Set<string> | undefined {
 function checkProbability(ctx: Ctx, o: Obj, path: string, key: 'ifEligible' | 'ifIneligible'): number | undefined {
   const meaning = key === 'ifEligible' ? 'the probability of an offer when the formula says eligible'
     : 'the probability of an offer when the formula says ineligible';
-  const v = requireField(ctx, o, path, key, 'the offer', `give ${meaning}, a number from 0 to 1`);
+  const field = key === 'ifEligible' ? 'The chance of an offer when eligible' : 'The chance of an offer when not eligible';
+  const v = requireField(ctx, o, path, key, 'the offer', `give ${meaning}, a number from 0 to 1`, `${field} is missing: type a number from 0 to 1.`);
   if (v === undefined) return undefined;
   const p = fieldPath(path, key);
   if (typeof v === 'number' && Number.isFinite(v) && v >= 0 && v <= 1) return v;
+  if (ctx.forms) {
+    const hint = typeof v === 'number' && Number.isFinite(v) && v > 1 && v <= 100 ? `: for ${v}% type ${v / 100}` : typeof v === 'string' && v.trim() === '' ? '' : ' (0.6 for 60%)';
+    report(ctx, p, `${field} is a number from 0 to 1${hint}.`);
+    return undefined;
+  }
   if (typeof v === 'number' && Number.isFinite(v) && v > 1 && v <= 100) {
     report(ctx, p, `"${key}" is ${meaning}, a number from 0 to 1; found ${v}: for ${v}% write ${v / 100}`);
   } else if (typeof v === 'string' && /%\s*$/.test(v)) {
@@ -826,8 +872,9 @@ function checkOffer(ctx: Ctx, o: unknown, path: string): void {
   const e = checkProbability(ctx, o, path, 'ifEligible');
   const i = checkProbability(ctx, o, path, 'ifIneligible');
   if (e !== undefined && i !== undefined && e === i) {
-    report(ctx, path,
-      `"ifEligible" and "ifIneligible" are both ${e}, so the offer would not depend on the formula: use 1 and 0 for a deterministic rule, or e.g. 0.6 and 0 for a lottery among the eligible`);
+    report(ctx, path, say(ctx,
+      `"ifEligible" and "ifIneligible" are both ${e}, so the offer would not depend on the formula: use 1 and 0 for a deterministic rule, or e.g. 0.6 and 0 for a lottery among the eligible`,
+      `Both chances are ${e}, so the offer would not depend on the rule: use 1 and 0 for a plain rule, or such as 0.6 and 0 for a lottery among the eligible.`));
   }
 }
 
@@ -837,17 +884,17 @@ function checkOffer(ctx: Ctx, o: unknown, path: string): void {
  * Checks a program object. On success `value` is a fresh copy holding only the known fields,
  * with numbers and strings exactly as given (nothing rewritten), safe to hand to the compiler.
  */
-export function validateProgram(input: unknown, basePath = 'program'): Checked<Program> {
+export function validateProgram(input: unknown, basePath = 'program', options: ValidateOptions = {}): Checked<Program> {
   try {
-    return validateUnguarded(input, basePath);
+    return validateUnguarded(input, basePath, options.forms === true);
   } catch {
     // Only reachable with exotic objects (proxies, throwing getters): not JSON data.
     return { ok: false, problems: [{ path: basePath, message: 'the program could not be read: it must be plain JSON data (objects, lists, text, numbers)' }] };
   }
 }
 
-function validateUnguarded(input: unknown, basePath: string): Checked<Program> {
-  const ctx: Ctx = { problems: [], overflow: 0, vars: new Map(), conditionsSeen: 0, conditionLimitReported: false, divisionWork: 0, variablesUsable: true, expressionCache: new Map() };
+function validateUnguarded(input: unknown, basePath: string, forms: boolean): Checked<Program> {
+  const ctx: Ctx = { problems: [], overflow: 0, vars: new Map(), conditionsSeen: 0, conditionLimitReported: false, divisionWork: 0, variablesUsable: true, expressionCache: new Map(), forms };
   if (!isPlainObject(input)) {
     return {
       ok: false,
@@ -855,8 +902,8 @@ function validateUnguarded(input: unknown, basePath: string): Checked<Program> {
     };
   }
   unknownFields(ctx, input, basePath, PROGRAM_FIELDS, 'the program');
-  const name = requireField(ctx, input, basePath, 'name', 'the program', 'give it a name, e.g. "Winter Energy Credit"');
-  if (name !== undefined) checkText(ctx, name, fieldPath(basePath, 'name'), 'the program name');
+  const name = requireField(ctx, input, basePath, 'name', 'the program', 'give it a name, e.g. "Winter Energy Credit"', 'Type the program’s name, such as Winter energy credit.');
+  if (name !== undefined) checkText(ctx, name, fieldPath(basePath, 'name'), 'the program name', 'Type the program’s name, such as Winter energy credit.');
   const unit = get(input, 'unit');
   if (unit !== undefined) checkText(ctx, unit, fieldPath(basePath, 'unit'), 'the unit (what one row is, e.g. "household")');
 
@@ -867,7 +914,8 @@ function validateUnguarded(input: unknown, basePath: string): Checked<Program> {
     if (!Array.isArray(variables)) {
       report(ctx, vp, `the variables must be a list of objects, one per variable; found ${given(variables)}`);
     } else if (variables.length === 0) {
-      report(ctx, vp, 'no variables are declared: list at least one, e.g. {"key": "income", "label": "Annual income", "type": "continuous", "column": "INCOME"}');
+      report(ctx, vp, say(ctx, 'no variables are declared: list at least one, e.g. {"key": "income", "label": "Annual income", "type": "continuous", "column": "INCOME"}',
+        'Add the variables the rule reads (Add a variable), such as Annual income.'));
     } else if (variables.length > MAX_VARIABLES) {
       report(ctx, vp, `there are ${variables.length} variables; the limit is ${MAX_VARIABLES}`);
     } else {
@@ -877,7 +925,8 @@ function validateUnguarded(input: unknown, basePath: string): Checked<Program> {
         if (info === undefined) continue;
         const first = firstAt.get(info.key);
         if (first !== undefined) {
-          report(ctx, fieldPath(indexPath(vp, i), 'key'), `"${info.key}" is already the key of ${indexPath(vp, first)}: give each variable its own key`);
+          report(ctx, fieldPath(indexPath(vp, i), 'key'), say(ctx, `"${info.key}" is already the key of ${indexPath(vp, first)}: give each variable its own key`,
+            `${info.key} is already the short name of variable ${first + 1}: give each variable its own.`));
         } else {
           firstAt.set(info.key, i);
           ctx.vars.set(info.key, info);
@@ -886,7 +935,7 @@ function validateUnguarded(input: unknown, basePath: string): Checked<Program> {
     }
   }
 
-  const rule = requireField(ctx, input, basePath, 'rule', 'the program', 'give the eligibility condition, e.g. {"value": "income", "op": "<=", "limit": 30000}');
+  const rule = requireField(ctx, input, basePath, 'rule', 'the program', 'give the eligibility condition, e.g. {"value": "income", "op": "<=", "limit": 30000}', 'Add at least one criterion under “Who is eligible”.');
   if (rule !== undefined) checkCondition(ctx, rule, fieldPath(basePath, 'rule'), 1);
   const offer = requireField(ctx, input, basePath, 'offer', 'the program', 'say how the verdict becomes an offer, e.g. {"ifEligible": 1, "ifIneligible": 0}');
   if (offer !== undefined) checkOffer(ctx, offer, fieldPath(basePath, 'offer'));
@@ -921,7 +970,7 @@ function copyVariable(v: Obj): Variable {
     key: get(v, 'key') as string,
     label: get(v, 'label') as string,
     type: get(v, 'type') as Variable['type'],
-    column: get(v, 'column') as string,
+    column: (get(v, 'column') as string | undefined) ?? '',
   };
   const unit = get(v, 'unit'); if (unit !== undefined) out.unit = unit as string;
   const scale = get(v, 'scale'); if (scale !== undefined) out.scale = scale as number;

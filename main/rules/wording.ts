@@ -50,7 +50,8 @@ function plural(noun: string): string {
   return `${noun}s`;
 }
 
-function article(noun: string): string {
+/** "a" or "an" before a noun, by its first letters. */
+export function article(noun: string): string {
   return /^[aeio]/i.test(noun) || /^u[^aeiou][^aeiou]/i.test(noun) ? 'an' : 'a';
 }
 

@@ -11,8 +11,8 @@ import { validateProgram } from '../rules/validate.ts';
 export const STUDY_FORMAT_VERSION = 1;
 
 const STUDY_FIELDS = ['fenceline', 'title', 'description', 'program', 'data', 'columns', 'settings'];
-const DATA_FIELDS = ['path', 'sheet', 'headerRow', 'join'];
-const JOIN_FIELDS = ['path', 'sheet', 'key', 'headerRow'];
+const DATA_FIELDS = ['path', 'fileName', 'sheet', 'headerRow', 'join'];
+const JOIN_FIELDS = ['path', 'fileName', 'sheet', 'key', 'headerRow'];
 const COLUMN_FIELDS = ['id', 'outcomes', 'treatment', 'treatmentPer', 'decision', 'cluster', 'covariates', 'controls'];
 const OUTCOME_FIELDS = ['column', 'label'];
 const SETTINGS_FIELDS = ['deltas', 'draws', 'seed', 'smallCellMax'];
@@ -83,6 +83,7 @@ function validateData(ps: Problems, v: unknown): StudyData | undefined {
   const path = text(ps, o, 'path', 'data', 'The data file path', true);
   const sheet = text(ps, o, 'sheet', 'data', 'The sheet name', false);
   const headerRow = wholeNumber(ps, o, 'headerRow', 'data', 'The header row', 1);
+  const fileName = text(ps, o, 'fileName', 'data', 'The file name', false);
   let join: JoinSource[] | undefined;
   if (hasOwn(o, 'join') && getOwn(o, 'join') !== undefined) {
     const list = getOwn(o, 'join');
@@ -98,12 +99,13 @@ function validateData(ps: Problems, v: unknown): StudyData | undefined {
         const key = text(ps, jo, 'key', jp, 'The ID column of the joined file', true);
         const jsheet = text(ps, jo, 'sheet', jp, 'The sheet name', false);
         const jheader = wholeNumber(ps, jo, 'headerRow', jp, 'The header row', 1);
-        if (jpath && key) join!.push({ path: jpath, key, ...(jsheet ? { sheet: jsheet } : {}), ...(jheader ? { headerRow: jheader } : {}) });
+        const jname = text(ps, jo, 'fileName', jp, 'The file name', false);
+        if (jpath && key) join!.push({ path: jpath, key, ...(jname ? { fileName: jname } : {}), ...(jsheet ? { sheet: jsheet } : {}), ...(jheader ? { headerRow: jheader } : {}) });
       });
     }
   }
   if (!path) return undefined;
-  return { path, ...(sheet ? { sheet } : {}), ...(headerRow ? { headerRow } : {}), ...(join ? { join } : {}) };
+  return { path, ...(fileName ? { fileName } : {}), ...(sheet ? { sheet } : {}), ...(headerRow ? { headerRow } : {}), ...(join ? { join } : {}) };
 }
 
 function validateColumns(ps: Problems, v: unknown, data: StudyData | undefined): StudyColumns | undefined {

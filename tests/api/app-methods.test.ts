@@ -8,7 +8,6 @@ import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { callApi, REGISTERED_METHODS } from '../../main/api.ts';
 import { API_METHODS } from '../../main/contract/api.ts';
-import { suggestRoles } from '../../main/api/column-roles.ts';
 import { rebasePath } from '../../main/api/studies.ts';
 import { SAMPLE_DIR, sampleStudy } from '../app/helpers.ts';
 
@@ -143,15 +142,6 @@ describe('data.preview and data.check', () => {
     const bad = await callApi('data.check', { study: { ...study, columns: { id: 'CASE_IDD', outcomes: [{ column: 'OUTCOME' }] } }, baseDir: dir });
     expect(bad.ok).toBe(false);
     if (!bad.ok) expect(bad.error.problems[0]!.message).toMatch(/did you mean CASE_ID/);
-  });
-});
-
-describe('column role suggestions', () => {
-  it('gives one ID, one decision and one cluster, and lets the program\'s own names win', () => {
-    const facts = (name: string, over: Partial<Parameters<typeof suggestRoles>[0][number]> = {}) =>
-      ({ name, holds: 'numbers' as const, mostlyNumbers: true, distinct: 5, looked: 5, zeroOne: false, ...over });
-    const s = suggestRoles([facts('PERSON_ID'), facts('HOUSEHOLD_ID'), facts('OFFICE_ID', { distinct: 3 }), facts('Site'), facts('age'), facts('pupils', { zeroOne: true })], { variables: [{ key: 'age', label: 'Age', column: 'AGE' }] });
-    expect(s.map((x) => x?.role)).toEqual(['id', 'outcome', 'cluster', 'outcome', 'variable', 'covariate']);
   });
 });
 

@@ -27,7 +27,7 @@ describe('every problem of the validator lands next to a field the Rule screen s
     expect(assigned.unclaimed).toEqual([]);
     const fieldOf = (needle: RegExp) => [...assigned.byField].find(([, ps]) => ps.some((p) => needle.test(p.message)))?.[0];
     expect(fieldOf(/sixty/)).toBe('program.rule.all[1].any[0].limit');
-    expect(fieldOf(/28000/)).toBe('program.rule.all[0].limit');
+    expect(fieldOf(/28000/)).toBe('program.rule.all[0].limit.table["2"]'); // beside its row of the table
     expect([...assigned.byField.keys()]).toContain('program.offer.ifEligible');
     expect([...assigned.byField.keys()].some((k) => k.startsWith('program.variables[0]'))).toBe(true);
   });

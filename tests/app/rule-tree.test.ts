@@ -38,21 +38,26 @@ describe('form edits keep the program valid and the members in place', () => {
     removeChild(g, 0);
     expect(g).toMatchObject({ atLeast: 1 });
   });
-  it('turns a number limit into a table by the discrete variable, carrying the number to every row', () => {
+  it('turns a number limit into a table by the discrete variable with empty rows, never inventing limits', () => {
     const { program } = sampleStudy();
     program.variables[1]!.values = [1, 2, 3];
     const age = ((program.rule as { all: Condition[] }).all[1] as { any: Comparison[] }).any[0]!;
     setLimitKind(age, 'table', program);
     expect(limitKind(age)).toBe('table');
-    expect(age.limit).toEqual({ by: 'size', table: { 1: 65, 2: 65, 3: 65 }, else: 65 } satisfies LookupLimit);
-    expect(validateProgram(program).ok).toBe(true);
-    setLimitKind(age, 'expression', program);
-    expect(age.limit).toBe('65');
-    expect(limitKind(age)).toBe('number');
+    expect(age.limit).toEqual({ by: 'size', table: { 1: '', 2: '', 3: '' } } satisfies LookupLimit);
+    expect(validateProgram(program).ok).toBe(false);
+    const number = ((program.rule as { all: Condition[] }).all[0] as Comparison);
+    number.limit = 65;
+    setLimitKind(number, 'expression', program);
+    expect(number.limit).toBe('65');
+    expect(limitKind(number)).toBe('number');
   });
-  it('adds a new criterion on a continuous variable that validates', () => {
+  it('adds a new criterion on a continuous variable, refused until its limit is typed', () => {
     const { program } = sampleStudy();
-    addChild(program.rule, newComparison(program));
+    const c = newComparison(program);
+    addChild(program.rule, c);
+    expect(validateProgram(program).ok).toBe(false);
+    c.limit = 30000;
     expect(validateProgram(program).ok).toBe(true);
   });
 });

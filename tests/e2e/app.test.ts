@@ -37,7 +37,7 @@ describe('browser mode guards its api with the launch token', () => {
 });
 
 describe('the guided path, start to memo', () => {
-  it('opens a sample, edits the rule, maps the data, runs, reads the evidence and exports the memo', async () => {
+  it('opens a sample, edits the rule, maps the data, runs, reads the evidence and exports the memo', { timeout: 600_000 }, async () => {
     const { page } = s;
     await page.goto(s.server.url);
     await page.getByRole('heading', { name: 'Start' }).waitFor();
@@ -68,16 +68,17 @@ describe('the guided path, start to memo', () => {
 
     // Data: bring in the workbook by its path, see the preview, map columns, check.
     await page.getByRole('button', { name: /^○?\s*Data/ }).click();
+    await page.getByText("Type the file's location instead").click();
     const pathBox = page.getByLabel(/Workbook \(\.xlsx\) or CSV file/);
     const workbook = join(import.meta.dirname, '..', '..', 'sample-programs', 'winter-credit', 'applicants.xlsx');
     await pathBox.fill(workbook);
     await page.getByRole('button', { name: 'Open', exact: true }).first().click();
-    await page.getByRole('heading', { name: 'First rows' }).waitFor({ timeout: 30_000 });
+    await page.getByRole('heading', { name: 'First rows' }).waitFor({ timeout: 60_000 });
     const renter = page.getByLabel('Role of column RENTER');
     await renter.selectOption({ label: 'Not used' });
     await renter.selectOption({ label: 'Covariate (for balance checks)' });
     expect(await renter.inputValue()).toBe('covariate');
-    await page.getByRole('button', { name: 'Check the data' }).click();
+    // The data are checked by themselves once every role is given.
     await expect.poll(() => page.getByTestId('data-report').textContent(), { timeout: 60_000 }).toMatch(/will be used/);
     await shot(page, '03-data');
 
@@ -155,11 +156,12 @@ describe('the guided path, start to memo', () => {
     const bad = join(s.scratch, 'applicants.xlsx');
     writeFileSync(bad, 'APPLICANT_ID,HH_INCOME\nA-1,100\n');
     await page.getByRole('button', { name: /^○?✓?\s*Data/ }).click();
+    if (!(await page.getByLabel(/Workbook \(\.xlsx\) or CSV file/).isVisible())) await page.getByText("Type the file's location instead").click();
     const pathBox = page.getByLabel(/Workbook \(\.xlsx\) or CSV file/);
     await pathBox.fill(bad);
     await page.getByRole('button', { name: 'Open', exact: true }).first().click();
     const message = page.locator('#data-path-msg li').first();
-    await message.waitFor({ timeout: 30_000 });
+    await message.waitFor({ timeout: 60_000 }).catch(async (e) => { await shot(page, 'debug-bad'); throw e; });
     expect(await message.textContent()).toMatch(/named like an Excel workbook but holds plain text/);
     expect(await pathBox.getAttribute('aria-invalid')).toBe('true');
     await shot(page, '08-data-bad-workbook');

@@ -201,9 +201,17 @@ function balanceConfig(spec: BalanceSpec, o: Opts): AnyChartConfig {
   return cfg('scatter', datasets, options, [referencePlugin(refs, o.fontFamily, o.fontSize - 2)]);
 }
 
+const TEXTURE_INK = 'rgba(0, 50, 90, 0.75)';
+/** The pattern of a map cell by its offer probability (exported for the tests). */
+export function offerTexture(p: number): 'dot' | 'plus' | 'none' {
+  return !(p > 0) ? 'none' : p >= 1 ? 'dot' : 'plus';
+}
+
 function boundaryMapConfig(spec: BoundaryMapSpec, o: Opts): AnyChartConfig {
   const g = spec.grid;
   const fill = g.probability.map((row) => row.map((p) => probabilityFill(p)));
+  // Shape as well as lightness (never colour alone): dots where the offer is certain, plus signs where it is a chance.
+  const texture = g.probability.map((row) => row.map((p) => offerTexture(p)));
   const c = spec.counts;
   const legendSwatch = (label: string, color: string, extra: Record<string, unknown> = {}) => ({
     type: 'scatter', label, data: [], pointStyle: 'rect', pointBackgroundColor: color, backgroundColor: color,
@@ -223,9 +231,9 @@ function boundaryMapConfig(spec: BoundaryMapSpec, o: Opts): AnyChartConfig {
       pointStyle: 'circle', borderColor: INK.text, pointBorderColor: INK.text,
     })] : []),
     ...unitDatasets,
-    legendSwatch('Offer probability 0', probabilityFill(0)),
-    legendSwatch('Offer probability 0.5', probabilityFill(0.5)),
-    legendSwatch('Offer probability 1', probabilityFill(1)),
+    legendSwatch('Offer probability 0 (plain)', probabilityFill(0)),
+    legendSwatch('Offer probability between 0 and 1 (plus signs)', probabilityFill(0.5), { pointStyle: 'cross', borderColor: TEXTURE_INK, pointBorderColor: TEXTURE_INK, pointBorderWidth: 2 }),
+    legendSwatch('Offer probability 1 (dots)', probabilityFill(1), { pointStyle: 'circle', pointBackgroundColor: TEXTURE_INK, backgroundColor: TEXTURE_INK }),
     legendSwatch(`Boundary band (delta = ${spec.delta}), hatched`, 'rgba(0,0,0,0.35)', { pointStyle: 'crossRot', borderColor: INK.text, pointBorderColor: INK.text }),
   ];
   const options = baseOptions(spec, o, axisTitle(spec.x), axisTitle(spec.y));
@@ -236,7 +244,7 @@ function boundaryMapConfig(spec: BoundaryMapSpec, o: Opts): AnyChartConfig {
   scales['y'] = { ...scales['y'], type: 'linear', min: Math.min(...yAll), max: Math.max(...yAll), grid: { display: false } };
   return cfg('scatter', datasets, options, [
     shadedGridPlugin({
-      xEdges: g.xEdges, yEdges: g.yEdges, fill, hatch: g.inBand, hatchColor: 'rgba(0, 0, 0, 0.45)',
+      xEdges: g.xEdges, yEdges: g.yEdges, fill, hatch: g.inBand, hatchColor: 'rgba(0, 0, 0, 0.45)', texture, textureColor: TEXTURE_INK,
       ...(c ? { markers: { xEdges: c.xEdges, yEdges: c.yEdges, values: c.values, fill: 'rgba(255, 255, 255, 0.85)', stroke: INK.text } } : {}),
     }),
   ]);

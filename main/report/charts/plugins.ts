@@ -117,6 +117,12 @@ export interface ShadedGrid {
   /** hatch[iy][ix]: draw diagonal hatching and outline the region. */
   hatch: ReadonlyArray<ReadonlyArray<boolean>>;
   hatchColor: string;
+  /**
+   * texture[iy][ix]: a pattern on a fixed pixel lattice, so the offer probability is read from
+   * shape as well as from lightness: 'dot' (offered always), 'plus' (offered sometimes), 'none'.
+   */
+  texture?: ReadonlyArray<ReadonlyArray<'dot' | 'plus' | 'none'>>;
+  textureColor?: string;
   /** Count markers: circles centred in the cells of their own grid, area proportional to the count. */
   markers?: {
     xEdges: readonly number[];
@@ -150,6 +156,7 @@ export function shadedGridPlugin(grid: ShadedGrid): Plugin {
           ctx.fillRect(Math.min(x0, x1) - 0.25, Math.min(y0, y1) - 0.25, Math.abs(x1 - x0) + 0.5, Math.abs(y1 - y0) + 0.5);
         }
       }
+      if (grid.texture) drawTexture(ctx, grid.texture, grid.textureColor ?? 'rgba(0, 50, 90, 0.75)', px, py);
       // Hatching: 45° lines on a fixed pixel lattice, clipped to each marked cell.
       ctx.strokeStyle = grid.hatchColor;
       ctx.lineWidth = 1;
@@ -194,6 +201,36 @@ export function shadedGridPlugin(grid: ShadedGrid): Plugin {
       ctx.restore();
     },
   };
+}
+
+/** Dots or plus signs on a 9-pixel lattice (fixed in pixels, so neighbouring cells join seamlessly), clipped to each cell. */
+function drawTexture(ctx: Ctx, texture: NonNullable<ShadedGrid['texture']>, color: string, px: number[], py: number[]): void {
+  const step = 9;
+  ctx.fillStyle = color;
+  ctx.strokeStyle = color;
+  ctx.lineWidth = 1.2;
+  ctx.setLineDash([]);
+  for (let iy = 0; iy < py.length - 1; iy++) {
+    for (let ix = 0; ix < px.length - 1; ix++) {
+      const kind = texture[iy]?.[ix] ?? 'none';
+      if (kind === 'none') continue;
+      const l = Math.min(px[ix]!, px[ix + 1]!), r = Math.max(px[ix]!, px[ix + 1]!);
+      const t = Math.min(py[iy]!, py[iy + 1]!), b = Math.max(py[iy]!, py[iy + 1]!);
+      ctx.save();
+      ctx.beginPath();
+      ctx.rect(l, t, r - l, b - t);
+      ctx.clip();
+      ctx.beginPath();
+      for (let y = Math.floor(t / step) * step + step / 2; y < b + step; y += step) {
+        for (let x = Math.floor(l / step) * step + step / 2; x < r + step; x += step) {
+          if (kind === 'dot') { ctx.moveTo(x + 1.3, y); ctx.arc(x, y, 1.3, 0, Math.PI * 2); }
+          else { ctx.moveTo(x - 2, y); ctx.lineTo(x + 2, y); ctx.moveTo(x, y - 2); ctx.lineTo(x, y + 2); }
+        }
+      }
+      if (kind === 'dot') ctx.fill(); else ctx.stroke();
+      ctx.restore();
+    }
+  }
 }
 
 function drawMarkers(ctx: Ctx, m: NonNullable<ShadedGrid['markers']>, px: (v: number) => number, py: (v: number) => number): void {

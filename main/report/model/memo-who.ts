@@ -8,6 +8,7 @@ import type { MemoContext } from './memo-context.ts';
 import { boundaryMapFigure } from './memo-charts.ts';
 import { COUNT, DELTA, PERCENT, criterionText, upperFirst } from './memo-format.ts';
 import { num, numCellOr, stateCell, stateRun, text, textCell } from './memo-source.ts';
+import { article } from '../../rules/wording.ts';
 
 const MEAN = { style: 'decimal', decimals: 2 } as const;
 
@@ -89,7 +90,7 @@ export function whoSection(ctx: MemoContext): Section {
         { header: 'Near it only', align: 'right', format: COUNT },
       ],
       rows,
-      notes: [[text(`A ${one} near two criteria counts in both rows of “Near it”, so that column does not add up; “Near it only” does.`)]],
+      notes: [[text(`${upperFirst(article(one))} ${one} near two criteria counts in both rows of “Near it”, so that column does not add up; “Near it only” does.`)]],
     });
   }
 
