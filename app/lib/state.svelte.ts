@@ -3,7 +3,7 @@
 // client. Logic worth testing lives in the plain modules beside this one.
 
 import type {
-  CheckReport, DataPreview, EvaluateReport, ProgramCheck, ProgressEvent, SampleInfo, TryUnitReport, WorkspaceInfo, WorkspaceRecent,
+  ApiResult, CheckReport, DataPreview, EvaluateReport, ProgramCheck, ProgressEvent, SampleInfo, TryUnitReport, WorkspaceInfo, WorkspaceRecent, WorkspaceRun,
 } from '../../main/contract/api.ts';
 import type { Problem } from '../../main/contract/program.ts';
 import type { Results } from '../../main/contract/results.ts';
@@ -11,6 +11,7 @@ import type { ApiClient, PickedFile } from './api-client.ts';
 import { guessJoinKey } from './data-files.ts';
 import { overallShare } from './progress.ts';
 import { blankStudy, normalizeDraft, slug, tidyProgram, toStudyFile, type StudyDraft } from './draft.ts';
+import { outOfDateText, readSession, SESSION_VERSION, type SessionState } from './session.ts';
 import { pathStatus, type StepId } from './steps.ts';
 
 export type RunState = 'idle' | 'running' | 'done' | 'failed' | 'cancelled';
@@ -58,8 +59,76 @@ export class AppState {
   /** The study file the last run in this session used (the workspace copy). */
   runStudyPath = $state<string | null>(null);
   private controller: AbortController | null = null;
+  /** Job handle of the run in progress (followed again after a reload). */
+  runJob = $state<string | null>(null);
+  /** Fingerprint of the open study as it is now (study.fingerprint; null while it is not valid). */
+  draftFingerprint = $state<string | null>(null);
+  /** The draft's JSON as last opened or saved: anything else is an unsaved edit. */
+  savedKey = $state('');
+  /** The session was read back (autosave waits for it, so it never overwrites what it would restore). */
+  restored = $state(false);
+  /** A question the analyst must answer before going on (unsaved edits). */
+  question = $state<{ text: string; answer: (a: 'save' | 'discard' | 'cancel') => void } | null>(null);
 
   constructor(readonly api: ApiClient) {}
+
+  /** "These results are out of date: …" when the open study no longer matches the run shown. */
+  get outOfDate(): string | null {
+    return outOfDateText(this.report?.runId ?? null, this.report?.studySha256 ?? null, this.draftFingerprint);
+  }
+
+  get dirty(): boolean {
+    return this.draft !== null && this.draftKey() !== this.savedKey;
+  }
+
+  async refreshFingerprint(): Promise<void> {
+    if (!this.draft) { this.draftFingerprint = null; return; }
+    const r = await this.api.call('study.fingerprint', { study: toStudyFile($state.snapshot(this.draft) as StudyDraft), ...(this.baseDir ? { baseDir: this.baseDir } : {}) });
+    this.draftFingerprint = r.ok ? r.value.sha256 : null;
+  }
+
+  /** What the session keeps (session.ts). */
+  sessionState(): SessionState {
+    return {
+      version: SESSION_VERSION,
+      draft: this.draft ? toStudyFile($state.snapshot(this.draft) as StudyDraft) : null,
+      baseDir: this.baseDir, studyPath: this.studyPath, fromSample: this.fromSample, savedKey: this.savedKey,
+      step: this.step, runId: this.report?.runId ?? null, runJob: this.runJob,
+    };
+  }
+
+  async saveSession(): Promise<void> {
+    if (!this.restored || !this.info) return;
+    await this.api.call('session.save', { state: this.sessionState() });
+  }
+
+  /** Reopen where the analyst was: the study with its unsaved edits, the step, the run shown, a run still going. */
+  private async restoreSession(): Promise<void> {
+    const r = await this.api.call('session.load', {});
+    const s = r.ok ? readSession(r.value.state) : null;
+    if (s && s.draft) {
+      this.draft = normalizeDraft(s.draft);
+      this.baseDir = s.baseDir; this.studyPath = s.studyPath; this.fromSample = s.fromSample; this.savedKey = s.savedKey;
+      if (s.runId !== null) await this.showRecordedRun(s.runId);
+      this.step = s.step;
+      this.notice = 'Reopened where you were, with your unsaved edits.';
+      if (s.runJob) void this.followRun(s.runJob);
+    }
+    this.restored = true;
+  }
+
+  /** Ask before unsaved edits would be lost; 'save' saves them first. True when it is fine to go on. */
+  async mayLeaveDraft(): Promise<boolean> {
+    if (!this.dirty) return true;
+    const title = this.draft?.title || this.draft?.program.name || 'the open study';
+    const answer = await new Promise<'save' | 'discard' | 'cancel'>((resolve) => {
+      this.question = { text: `“${title}” has changes that are not saved in a study file. Save them first?`, answer: resolve };
+    });
+    this.question = null;
+    if (answer === 'cancel') return false;
+    if (answer === 'save') return (await this.saveStudy(this.defaultSavePath())).length === 0;
+    return true;
+  }
 
   get status() {
     return pathStatus({
@@ -68,6 +137,7 @@ export class AppState {
       dataReport: this.dataReport,
       dataReportCurrent: this.draft !== null && this.dataReportKey === this.dataKey(),
       run: this.report,
+      runCurrent: this.outOfDate === null,
       memoFiles: this.memoFiles,
       memoFormatsAvailable: (this.info?.memoFormats.length ?? 0) > 0,
     });
@@ -103,6 +173,7 @@ export class AppState {
     this.info = info.value;
     const samples = await this.api.call('samples.list', {});
     if (samples.ok) this.samples = samples.value.samples;
+    await this.restoreSession();
     await this.refreshRecent();
   }
 
@@ -116,23 +187,27 @@ export class AppState {
     this.preview = null; this.joinPreviews = {}; this.previewProblems = [];
     this.dataReport = null; this.dataProblems = []; this.dataReportKey = '';
     this.runState = 'idle'; this.progress = null; this.runProblems = []; this.report = null; this.results = null;
-    this.memoFiles = []; this.memoProblems = []; this.runStudyPath = null;
+    this.memoFiles = []; this.memoProblems = []; this.runStudyPath = null; this.runJob = null;
   }
 
-  newStudy(): void {
+  async newStudy(): Promise<void> {
+    if (!(await this.mayLeaveDraft())) return;
     this.resetDerived();
     this.draft = blankStudy();
+    this.savedKey = this.draftKey();
     this.baseDir = null; this.studyPath = null; this.fromSample = false; this.openProblems = [];
     this.step = 'rule';
   }
 
   async openStudy(path: string, fromSample = false): Promise<Problem[]> {
+    if (!(await this.mayLeaveDraft())) return [];
     this.busy = 'Opening the study…';
     const r = await this.api.call('study.open', { path });
     this.busy = null;
     if (!r.ok) return r.error.problems;
     this.resetDerived();
     this.draft = normalizeDraft(r.value.study);
+    this.savedKey = this.draftKey();
     this.baseDir = r.value.baseDir;
     this.studyPath = fromSample ? null : r.value.path;
     this.fromSample = fromSample;
@@ -150,6 +225,7 @@ export class AppState {
     // Reopen what was written, so relative data paths are relative to the new folder.
     const reopened = await this.api.call('study.open', { path: r.value.path });
     if (reopened.ok) { this.draft = normalizeDraft(reopened.value.study); this.baseDir = reopened.value.baseDir; }
+    this.savedKey = this.draftKey();
     this.studyPath = r.value.path;
     this.fromSample = false;
     this.notice = `Saved the study to ${r.value.path}.`;
@@ -307,16 +383,45 @@ export class AppState {
     this.controller = new AbortController();
     const r = await this.api.call('study.evaluate', {
       studyPath: saved.value.path, outDir: join(info.runsDir, `${name}-${stamp()}`), formats: [...info.memoFormats], workspacePath: info.workspacePath,
-    }, { onProgress: (p) => { this.progress = p; this.runShare = overallShare(p, this.runShare); }, signal: this.controller.signal });
+    }, {
+      onProgress: (p) => { this.progress = p; this.runShare = overallShare(p, this.runShare); },
+      signal: this.controller.signal,
+      onStarted: (handle) => { this.runJob = handle; void this.saveSession(); },
+    });
+    this.finishRun(r);
+  }
+
+  /** A run started before the page was reloaded: follow it again, with its progress, and let it be cancelled. */
+  private async followRun(handle: string): Promise<void> {
+    this.runState = 'running';
+    this.runShare = 0;
+    this.runJob = handle;
+    this.controller = new AbortController();
+    const r = await this.api.resume('study.evaluate', handle, {
+      onProgress: (p) => { this.progress = p; this.runShare = overallShare(p, this.runShare); },
+      signal: this.controller.signal,
+    });
+    if (r === null) { this.controller = null; this.runJob = null; this.runState = 'idle'; this.progress = null; return; }
+    this.finishRun(r);
+  }
+
+  private finishRun(r: ApiResult<EvaluateReport>): void {
     this.controller = null;
+    this.runJob = null;
     this.progress = null;
-    if (!r.ok) { this.runState = r.error.kind === 'cancelled' ? 'cancelled' : 'failed'; this.runProblems = r.error.problems; return; }
-    this.report = r.value;
-    this.results = r.value.results;
-    this.memoFiles = r.value.files.filter((f) => MEMO_EXT.test(f));
+    if (!r.ok) { this.runState = r.error.kind === 'cancelled' ? 'cancelled' : 'failed'; this.runProblems = r.error.problems; void this.saveSession(); return; }
+    this.applyRun(r.value);
+  }
+
+  private applyRun(report: EvaluateReport): void {
+    this.report = report;
+    this.results = report.results;
+    this.memoFiles = report.files.filter((f) => MEMO_EXT.test(f));
     this.runState = 'done';
-    this.notice = `The run finished: ${r.value.results.study.rowsUsed.toLocaleString('en-US')} unit${r.value.results.study.rowsUsed === 1 ? '' : 's'} used. Files are in ${r.value.outDir}.`;
+    const used = report.results.study.rowsUsed;
+    this.notice = `The run finished: ${used.toLocaleString('en-US')} unit${used === 1 ? '' : 's'} used. Files are in ${report.outDir}.`;
     void this.refreshRecent();
+    void this.saveSession();
   }
 
   cancelRun(): void {
@@ -339,17 +444,30 @@ export class AppState {
   }
 
   async openRecordedRun(runId: number): Promise<Problem[]> {
+    if (!(await this.mayLeaveDraft())) return [];
     const r = await this.api.call('workspace.run', { runId });
     if (!r.ok) return r.error.problems;
     this.resetDerived();
     this.draft = normalizeDraft(r.value.study);
+    this.savedKey = this.draftKey();
     this.baseDir = null; this.studyPath = null; this.fromSample = false; this.openProblems = [];
-    this.results = r.value.results;
-    this.report = { outDir: r.value.outDir, files: r.value.files, results: r.value.results, runId: r.value.runId, studySha256: r.value.studySha256, timings: {} };
-    this.memoFiles = r.value.files.filter((f) => MEMO_EXT.test(f));
-    this.runState = 'done';
+    this.showRun(r.value);
     this.step = 'evidence';
     return [];
+  }
+
+  /** Show a stored run beside the open study (after a reload), without replacing the study. */
+  private async showRecordedRun(runId: number): Promise<void> {
+    const r = await this.api.call('workspace.run', { runId });
+    if (r.ok) this.showRun(r.value);
+  }
+
+  private showRun(run: WorkspaceRun): void {
+    this.results = run.results;
+    this.report = { outDir: run.outDir, files: run.files, results: run.results, runId: run.runId, studySha256: run.studySha256, timings: {} };
+    this.memoFiles = run.files.filter((f) => MEMO_EXT.test(f));
+    this.runState = 'done';
+    if (run.status === 'writing') this.notice = `Run ${run.runId} was interrupted while its files were written: some of them may be missing. Run the study again for a complete set.`;
   }
 }
 

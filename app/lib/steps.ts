@@ -15,6 +15,8 @@ export interface PathState {
   /** The data report is for the draft as it is now (nothing changed since the check). */
   dataReportCurrent: boolean;
   run: EvaluateReport | null;
+  /** The run is of the study as it is now (its fingerprint matches); false: its results are out of date. */
+  runCurrent: boolean;
   memoFiles: string[];
   memoFormatsAvailable: boolean;
 }
@@ -43,9 +45,11 @@ export function pathStatus(s: PathState): StepStatus[] {
     else if (d.columns.outcomes.some((o) => !(o.label ?? '').trim())) data.push('name each outcome for the memo');
     if (!s.dataReport || !s.dataReportCurrent) data.push('check the data');
   }
-  const run: string[] = s.run ? [] : ['run the study'];
-  const evidence: string[] = s.run ? [] : ['run the study first'];
-  const memo: string[] = !s.run ? ['run the study first'] : !s.memoFormatsAvailable ? ['memo files are not available in this version'] : s.memoFiles.length ? [] : ['write the memo files'];
+  // Done is a fact about the study as it is now: a run of an earlier version is out of date.
+  const stale = s.run !== null && !s.runCurrent;
+  const run: string[] = !s.run ? ['run the study'] : stale ? ['run again: the study changed since its last run'] : [];
+  const evidence: string[] = !s.run ? ['run the study first'] : stale ? ['out of date: run the study again'] : [];
+  const memo: string[] = !s.run ? ['run the study first'] : stale ? ['out of date: run the study again'] : !s.memoFormatsAvailable ? ['memo files are not available in this version'] : s.memoFiles.length ? [] : ['write the memo files'];
   return [
     step('start', d ? [] : ['open a study, a sample, or start a new one']),
     step('rule', rule),

@@ -4,7 +4,21 @@ import { parseNumberList, pathStatus, type PathState } from '../../app/lib/steps
 import { sampleStudy } from './helpers.ts';
 
 const base = (over: Partial<PathState> = {}): PathState => ({
-  draft: null, programCheck: null, dataReport: null, dataReportCurrent: false, run: null, memoFiles: [], memoFormatsAvailable: true, ...over,
+  draft: null, programCheck: null, dataReport: null, dataReportCurrent: false, run: null, runCurrent: true, memoFiles: [], memoFormatsAvailable: true, ...over,
+});
+
+describe('a run of an earlier version of the study is out of date', () => {
+  it('Run, Evidence, Map and Memo lose their ✓ and say why', () => {
+    const run = { outDir: '/o', files: ['/o/memo.pdf'], results: {} as never, runId: 3, studySha256: 'a', timings: {} };
+    const current = pathStatus(base({ run, memoFiles: ['/o/memo.pdf'] }));
+    const stale = pathStatus(base({ run, memoFiles: ['/o/memo.pdf'], runCurrent: false }));
+    for (const id of ['run', 'evidence', 'map', 'memo'] as const) {
+      expect(current.find((x) => x.id === id)!.done).toBe(true);
+      const st = stale.find((x) => x.id === id)!;
+      expect(st.done).toBe(false);
+      expect(st.missing.join()).toMatch(/out of date|changed since its last run/);
+    }
+  });
 });
 
 describe('the guided path says what is done and what is missing', () => {
