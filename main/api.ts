@@ -1,7 +1,7 @@
 // The one API surface. The CLI calls these functions in-process; browser mode (serve.ts) and
 // Electron's IPC (electron/) call `callApi`, which refuses methods outside the contract and
 // arguments of the wrong shape before any work is done, then runs the method — on a worker
-// thread when the host gave a runner and the method is long (api/worker-runner.ts), otherwise
+// thread when the host gave a runner and the method is long (main/host/worker-runner.ts), otherwise
 // here. No analysis logic lives here.
 
 import { API_METHODS, OUTPUT_FORMATS, type ApiMethod, type ApiMethods, type ApiResult } from './contract/api.ts';
@@ -11,8 +11,7 @@ import { checkStudy, evaluateStudy, runDemo } from './api/evaluate.ts';
 import { checkDraftStudy, previewData } from './api/data.ts';
 import { boundaryMap } from './api/figures.ts';
 import { listFolder, openDialog, previewMemo, saveDialog } from './api/files.ts';
-import type { HostContext } from './api/host.ts';
-import { WORKER_METHODS } from './api/worker-runner.ts';
+import { WORKER_METHODS, type HostContext } from './api/host.ts';
 import { checkProgram, tryUnit } from './api/program.ts';
 import { listSamples, openStudy, saveStudy } from './api/studies.ts';
 import { recentWork, recordedRun, workspaceInfo } from './api/workspace.ts';

@@ -3,7 +3,7 @@
 // X-Fenceline-Token header (401 without it, 403 with a wrong one), so no other web page and no
 // other local user can call the api. The page is served with a strict Content-Security-Policy.
 // No analysis logic lives here: requests become callApi calls (main/api.ts), the long ones on
-// worker threads (main/api/worker-runner.ts).
+// worker threads (main/host/worker-runner.ts).
 
 import { randomBytes, timingSafeEqual } from 'node:crypto';
 import { readFileSync, statSync } from 'node:fs';
@@ -16,8 +16,8 @@ import { parseArgs } from 'node:util';
 import buildConfig from '../electron.config.ts';
 import type { ApiResult } from './contract/api.ts';
 import { callApi } from './api.ts';
-import { JobTable } from './api/jobs.ts';
-import { createWorkerRunner } from './api/worker-runner.ts';
+import { JobTable } from './host/jobs.ts';
+import { createWorkerRunner } from './host/worker-runner.ts';
 
 export const TOKEN_HEADER = 'x-fenceline-token';
 const MAX_BODY_BYTES = 20 * 2 ** 20;

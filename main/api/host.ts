@@ -3,9 +3,14 @@
 // the host has them (Electron). Browser mode and the CLI have no dialogs.
 
 import { join } from 'node:path';
-import type { AppHost, DialogArgs } from '../contract/api.ts';
+import type { ApiMethod, ApiResult, AppHost, DialogArgs } from '../contract/api.ts';
 import type { CallContext } from './context.ts';
-import type { WorkerRunner } from './worker-runner.ts';
+
+/** Methods that read a whole data file, open the workspace or estimate: never on the host's main thread. */
+export const WORKER_METHODS: ReadonlySet<ApiMethod> = new Set<ApiMethod>(['study.check', 'study.evaluate', 'demo.run', 'data.preview', 'data.check', 'figure.map', 'workspace.run']);
+
+/** Runs one long call on a worker thread (main/host/worker-runner.ts implements it; the api only knows its type). */
+export type WorkerRunner = (method: ApiMethod, args: unknown, ctx: HostContext) => Promise<ApiResult<unknown>>;
 
 export interface HostDialogs {
   openFile(args: DialogArgs): Promise<string | null>;
@@ -17,7 +22,7 @@ export interface HostContext extends CallContext {
   /** Folder of the workspace: the study files the app saves, run folders, the workspace file. */
   workspaceDir?: string;
   dialogs?: HostDialogs;
-  /** Runs the long methods (worker-runner.ts, WORKER_METHODS) on a worker thread; absent (the CLI, inside a worker): in-process. */
+  /** Runs the long methods (main/host/worker-runner.ts, WORKER_METHODS) on a worker thread; absent (the CLI, inside a worker): in-process. */
   runInWorker?: WorkerRunner;
 }
 

@@ -15,7 +15,7 @@ import type { DialogArgs } from '../contract/api.ts';
 import { IPC_CHANNELS, type ShellEvent } from '../contract/bridge.ts';
 import { callApi } from '../api.ts';
 import type { HostDialogs } from '../api/host.ts';
-import { createWorkerRunner } from '../api/worker-runner.ts';
+import { createWorkerRunner } from '../host/worker-runner.ts';
 import { APP_ENTRY, APP_SCHEME, isContractMethod, mayNavigate, mayRequest, refusedMethod, rendererFile, throttleProgress, windowOptions } from './policy.ts';
 
 const here = dirname(fileURLToPath(import.meta.url));

@@ -15,7 +15,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { monitorEventLoopDelay, performance } from 'node:perf_hooks';
 import { callApi } from '../../main/api.ts';
-import { JobTable } from '../../main/api/jobs.ts';
+import { JobTable } from '../../main/host/jobs.ts';
 import type { ApiResult, ProgressEvent } from '../../main/contract/api.ts';
 import { startServer } from '../../main/serve.ts';
 import { writeSingleFileStudy } from '../serve/single-file-study.ts';

@@ -12,7 +12,7 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import config from '../../electron.config.ts';
 import { buildElectron } from '../../scripts/build-electron.mjs';
 import { callApi } from '../../main/api.ts';
-import { createWorkerRunner } from '../../main/api/worker-runner.ts';
+import { createWorkerRunner } from '../../main/host/worker-runner.ts';
 import type { EvaluateReport } from '../../main/contract/api.ts';
 
 const dist = join(import.meta.dirname, '..', '..', config.outDir);

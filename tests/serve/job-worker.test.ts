@@ -1,4 +1,4 @@
-// Long api calls on worker threads (main/api/worker-runner.ts, job-worker.ts): the answer is the
+// Long api calls on worker threads (main/host/worker-runner.ts, job-worker.ts): the answer is the
 // same as in-process, progress comes back at most 10 a second, cancelling stops the work (by
 // message, or by terminating a thread that does not listen), an input problem comes back as a
 // problem and an internal fault as a plain message. The propensity pool starts its own workers
@@ -9,8 +9,8 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { callApi } from '../../main/api.ts';
-import { JobTable } from '../../main/api/jobs.ts';
-import { createWorkerRunner, WORKER_METHODS, type WorkerRunner } from '../../main/api/worker-runner.ts';
+import { JobTable } from '../../main/host/jobs.ts';
+import { createWorkerRunner, WORKER_METHODS, type WorkerRunner } from '../../main/host/worker-runner.ts';
 import type { ApiResult, EvaluateReport, ProgressEvent } from '../../main/contract/api.ts';
 import { startServer } from '../../main/serve.ts';
 import { SAMPLE_DIR } from '../app/helpers.ts';

@@ -1,4 +1,4 @@
-// Messages between the host's main thread and a job worker (main/api/job-worker.ts): plain,
+// Messages between the host's main thread and a job worker (main/host/job-worker.ts): plain,
 // structured-clone-safe data only. The host sends one call and perhaps a cancel; the worker
 // answers with progress events (at most 10 a second), then one answer or one fault.
 

@@ -10,12 +10,10 @@ import { fileURLToPath } from 'node:url';
 import { Worker } from 'node:worker_threads';
 import type { ApiMethod, ApiResult } from '../contract/api.ts';
 import type { FromJobWorker, ToJobWorker, WorkerHost } from './job-messages.ts';
-import type { CallContext } from './context.ts';
+import type { WorkerRunner } from '../api/host.ts';
 
-/** Methods that read a whole data file, open the workspace or estimate: never on the host's main thread. */
-export const WORKER_METHODS: ReadonlySet<ApiMethod> = new Set<ApiMethod>(['study.check', 'study.evaluate', 'demo.run', 'data.preview', 'data.check', 'figure.map', 'workspace.run']);
-
-export type WorkerRunner = (method: ApiMethod, args: unknown, ctx: CallContext & WorkerHost) => Promise<ApiResult<unknown>>;
+export { WORKER_METHODS } from '../api/host.ts';
+export type { WorkerRunner };
 
 export interface WorkerRunnerOptions {
   /** The worker script (default: the built job-worker.js beside this module, else the development entry). */
