@@ -21,15 +21,16 @@ import { SOFTWARE_VERSION } from '../store/software-version.ts';
 import { readStudyData, runStudy, type StudyRun } from '../pipeline/run-study.ts';
 import { figureData } from '../report/figure-data.ts';
 import { memoFiles } from '../report/memo-files.ts';
-import { loadStudyFile } from '../studyfile/load.ts';
 import { SAMPLES_DIR } from '../resources.ts';
+import { loadAllowedStudy, refuseIf, workspaceProblem, writeProblem } from './access.ts';
 import { refuse, type CallContext } from './context.ts';
+import type { HostContext } from './host.ts';
 
 /** The memo formats this version can write (docs/cli.md: memo.pdf, memo.html, memo.docx, tables.xlsx). */
 export const AVAILABLE_MEMO_FORMATS: readonly OutputFormat[] = ['pdf', 'html', 'docx', 'xlsx'];
 
-export async function checkStudy(args: CheckArgs, ctx: CallContext = {}): Promise<ApiResult<CheckReport>> {
-  const loaded = loadStudyFile(args.studyPath);
+export async function checkStudy(args: CheckArgs, ctx: HostContext = {}): Promise<ApiResult<CheckReport>> {
+  const loaded = loadAllowedStudy(ctx, args.studyPath);
   if (!loaded.ok) return refuse(loaded.problems);
   return checkValidatedStudy(loaded.value.study, loaded.value.baseDir, ctx);
 }
@@ -120,14 +121,16 @@ function recordInWorkspace(path: string, study: Study, run: StudyRun, startedAt:
   }
 }
 
-export async function evaluateStudy(args: EvaluateArgs, ctx: CallContext = {}): Promise<ApiResult<EvaluateReport>> {
+export async function evaluateStudy(args: EvaluateArgs, ctx: HostContext = {}): Promise<ApiResult<EvaluateReport>> {
   const startedAt = new Date().toISOString();
   const formats = args.formats ?? [];
   const unavailable = formats.filter((f) => !AVAILABLE_MEMO_FORMATS.includes(f));
   if (unavailable.length) {
     return refuse([{ path: '--formats', message: `This version cannot write ${unavailable.join(', ')} memos yet; use --formats none for results.json and units.csv.` }]);
   }
-  const loaded = loadStudyFile(args.studyPath);
+  const denied = refuseIf(writeProblem(ctx, args.outDir, 'outDir'), args.workspacePath !== undefined ? workspaceProblem(ctx, args.workspacePath, 'workspacePath') : null);
+  if (denied) return denied;
+  const loaded = loadAllowedStudy(ctx, args.studyPath);
   if (!loaded.ok) return refuse(loaded.problems);
   const study = withOverrides(loaded.value.study, args);
   if (!study.ok) return study;
@@ -160,7 +163,7 @@ export async function evaluateStudy(args: EvaluateArgs, ctx: CallContext = {}): 
 }
 
 /** The bundled sample study end to end. */
-export async function runDemo(args: DemoArgs, ctx: CallContext = {}): Promise<ApiResult<EvaluateReport>> {
+export async function runDemo(args: DemoArgs, ctx: HostContext = {}): Promise<ApiResult<EvaluateReport>> {
   const studyPath = join(SAMPLES_DIR, 'winter-credit', 'study.json');
   return evaluateStudy({ studyPath, outDir: args.outDir, ...(args.formats ? { formats: args.formats } : {}), ...(args.workers !== undefined ? { workers: args.workers } : {}) }, ctx);
 }

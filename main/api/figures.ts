@@ -26,7 +26,7 @@ import { boundaryMapChoices, boundaryMapData, deltaIndex, discreteCodes, type Ma
 import type { BoundaryMapData } from '../report/model/figure-types.ts';
 import type { Problem } from '../rules/types.ts';
 import { runStudy } from '../pipeline/run-study.ts';
-import { loadStudyFile } from '../studyfile/load.ts';
+import { loadAllowedStudy } from './access.ts';
 import { refuse, type CallContext } from './context.ts';
 import type { HostContext } from './host.ts';
 import { loadMapRun, storeMapRun } from './map-run-store.ts';
@@ -214,7 +214,7 @@ function mapNote(map: BoundaryMapData): string | null {
 }
 
 export async function boundaryMap(args: MapArgs, ctx: HostContext = {}): Promise<ApiResult<MapFigure>> {
-  const loaded = loadStudyFile(args.studyPath);
+  const loaded = loadAllowedStudy(ctx, args.studyPath);
   if (!loaded.ok) return refuse(loaded.problems);
   const { study, baseDir } = loaded.value;
   const early = mapArgProblems(study, args);

@@ -4,6 +4,7 @@
 
 import { join } from 'node:path';
 import type { ApiMethod, ApiResult, AppHost, DialogArgs } from '../contract/api.ts';
+import type { AccessGrants } from './access.ts';
 import type { CallContext } from './context.ts';
 
 /** Methods that read a whole data file, open the workspace or estimate: never on the host's main thread. */
@@ -22,6 +23,8 @@ export interface HostContext extends CallContext {
   /** Folder of the workspace: the study files the app saves, run folders, the workspace file. */
   workspaceDir?: string;
   dialogs?: HostDialogs;
+  /** The session's allow-list (access.ts): present in the app's hosts, absent for the CLI (which uses paths as typed). */
+  access?: AccessGrants;
   /** Runs the long methods (main/host/worker-runner.ts, WORKER_METHODS) on a worker thread; absent (the CLI, inside a worker): in-process. */
   runInWorker?: WorkerRunner;
 }
