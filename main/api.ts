@@ -5,7 +5,8 @@
 // here. No analysis logic lives here.
 
 import { API_METHODS, OUTPUT_FORMATS, type ApiMethod, type ApiMethods, type ApiResult } from './contract/api.ts';
-import { checkShape, type Shape } from './api/args.ts';
+import { availableParallelism } from 'node:os';
+import { checkShape, workersProblem, type Shape } from './api/args.ts';
 import { refuse, type CallContext } from './api/context.ts';
 import { checkStudy, evaluateStudy, runDemo } from './api/evaluate.ts';
 import { checkDraftStudy, previewData } from './api/data.ts';
@@ -80,6 +81,8 @@ export async function callApi(method: unknown, args: unknown, ctx: HostContext =
   const entry = METHODS[method];
   const problems = checkShape(args, entry.args, 'args');
   if (problems.length) return refuse(problems);
+  const workers = workersProblem((args as { workers?: number }).workers, 'args.workers', availableParallelism());
+  if (workers) return refuse([workers]);
   if (ctx.runInWorker && WORKER_METHODS.has(method)) return ctx.runInWorker(method, args, ctx);
   return (entry.run as Handler<ApiMethod>)(args as never, ctx);
 }

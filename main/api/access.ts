@@ -11,10 +11,11 @@
 // symbolic links, so a link inside an allowed folder cannot lead out of it, and without regard to
 // letter case where the file system ignores it (Windows, macOS by default).
 
-import { readFileSync, realpathSync } from 'node:fs';
-import { basename, dirname, isAbsolute, join, relative, resolve, sep } from 'node:path';
+import { readFileSync } from 'node:fs';
+import { dirname, isAbsolute, join, relative, resolve, sep } from 'node:path';
 import type { ApiResult } from '../contract/api.ts';
 import type { Study } from '../contract/study.ts';
+import { canonicalPath } from '../output/input-clash.ts';
 import type { Checked, Problem } from '../rules/types.ts';
 import { SAMPLES_DIR } from '../resources.ts';
 import { loadStudyFile, type LoadedStudy } from '../studyfile/load.ts';
@@ -36,26 +37,6 @@ export interface AccessGrants {
   workspacePath: string;
   /** The workspace's studies folder (see `vouches`). */
   studiesDir: string;
-}
-
-const CASE_INSENSITIVE = process.platform === 'win32' || process.platform === 'darwin';
-
-/** An absolute path with every existing part's symbolic links resolved (the rest appended as typed). */
-export function canonicalPath(p: string): string {
-  let abs = resolve(p);
-  const tail: string[] = [];
-  for (;;) {
-    try {
-      abs = join(realpathSync.native(abs), ...tail.reverse());
-      break;
-    } catch {
-      const parent = dirname(abs);
-      if (parent === abs) { abs = join(abs, ...tail.reverse()); break; }
-      tail.push(basename(abs));
-      abs = parent;
-    }
-  }
-  return CASE_INSENSITIVE ? abs.toLowerCase() : abs;
 }
 
 const inside = (root: string, p: string) => {
@@ -169,6 +150,8 @@ export function loadAllowedStudy(ctx: HostContext, studyPath: string, at = 'stud
   const problems = studyFilesProblems(ctx, loaded.value.study, loaded.value.baseDir, loaded.value.studyPath);
   return problems.length ? { ok: false, problems } : loaded;
 }
+
+export { canonicalPath };
 
 export const refuseIf = (...problems: Array<Problem | null>): ApiResult<never> | null => {
   const found = problems.filter((p): p is Problem => p !== null);

@@ -9,7 +9,8 @@ import type { Study } from '../contract/study.ts';
 import type { RawTable } from '../data/types.ts';
 import { Cancelled, validateSettings } from '../design/propensity.ts';
 import { unitsCsv } from '../output/units-csv.ts';
-import { writeFilesAtomically, type OutputFile } from '../output/write-files.ts';
+import { inputClashes } from '../output/input-clash.ts';
+import { writeOutputFiles, type OutputFile } from '../output/write-files.ts';
 import { prepareUnits } from '../pipeline/prepare-units.ts';
 import { describeAtom } from '../estimate/composition.ts';
 import { lowerValidatedProgram } from '../rules/compile.ts';
@@ -20,9 +21,9 @@ import type { DatasetColumnInput } from '../store/types.ts';
 import { SOFTWARE_VERSION } from '../store/software-version.ts';
 import { readStudyData, runStudy, type StudyRun } from '../pipeline/run-study.ts';
 import { figureData } from '../report/figure-data.ts';
-import { memoFiles } from '../report/memo-files.ts';
+import { MEMO_FILE_NAMES, memoFiles } from '../report/memo-files.ts';
 import { SAMPLES_DIR } from '../resources.ts';
-import { loadAllowedStudy, refuseIf, workspaceProblem, writeProblem } from './access.ts';
+import { loadAllowedStudy, refuseIf, studyDataPaths, workspaceProblem, writeProblem } from './access.ts';
 import { refuse, type CallContext } from './context.ts';
 import type { HostContext } from './host.ts';
 
@@ -134,6 +135,15 @@ export async function evaluateStudy(args: EvaluateArgs, ctx: HostContext = {}): 
   if (!loaded.ok) return refuse(loaded.problems);
   const study = withOverrides(loaded.value.study, args);
   if (!study.ok) return study;
+  // Outputs never replace the study's inputs (its files, its data, the workspace database): refused before the run.
+  const inputs = [
+    { path: loaded.value.studyPath, role: 'the study file' },
+    ...(loaded.value.study.programPath ? [{ path: resolve(loaded.value.baseDir, loaded.value.study.programPath), role: 'the program file' }] : []),
+    ...studyDataPaths(loaded.value.study, loaded.value.baseDir).map((d) => ({ path: d.path, role: 'the data file' })),
+    ...(args.workspacePath ? [{ path: args.workspacePath, role: 'the workspace database' }] : []),
+  ];
+  const early = inputClashes(resolve(args.outDir), ['results.json', 'units.csv', ...formats.map((f) => MEMO_FILE_NAMES[f])], inputs);
+  if (early.length) return refuse(early);
   let run;
   try {
     run = await runStudy(study.value, { baseDir: loaded.value.baseDir, ...ctx, ...(args.workers !== undefined ? { workers: args.workers } : {}) });
@@ -152,7 +162,12 @@ export async function evaluateStudy(args: EvaluateArgs, ctx: HostContext = {}): 
   if (formats.length) {
     files.push(...await memoFiles(r.results, figureData(r), formats, { createdAt: startedAt, ...(ctx.onProgress ? { onProgress: ctx.onProgress } : {}) }));
   }
-  const written = writeFilesAtomically(resolve(args.outDir), files);
+  // Checked again with the files' real names, just before writing.
+  const clashes = inputClashes(resolve(args.outDir), files.map((f) => f.name), inputs);
+  if (clashes.length) return refuse(clashes);
+  const wrote = writeOutputFiles(resolve(args.outDir), files);
+  if (!wrote.ok) return refuse(wrote.problems);
+  const written = wrote.value;
   let runId: number | null = null;
   if (args.workspacePath) {
     const recorded = recordInWorkspace(resolve(args.workspacePath), study.value, r, startedAt);
