@@ -55,7 +55,7 @@ export async function checkValidatedStudy(study: Study, baseDir: string, ctx: Ca
       outcomesMissing: study.columns.outcomes.map((o, i) => ({ column: o.column, count: prepared.data.outcomeMissing[i]?.count ?? 0 })),
       fidelity: prepared.fidelity,
       eligible: prepared.eligible.reduce((a, b) => a + b, 0),
-      notes: mapped.notes,
+      notes: [...mapped.notes, ...prepared.warnings],
       ruleWording: describeProgram(study.program),
     },
   };

@@ -136,7 +136,7 @@ export async function runStudy(study: Study, options: RunOptions): Promise<Check
   lap('propensity');
 
   options.onProgress?.({ stage: 'estimate', done: 0, total: 1 });
-  const warnings: Warning[] = [];
+  const warnings: Warning[] = [...prepared.warnings];
   const clusters = data.cluster ? data.cluster.codes : undefined;
   const offer: NamedColumn = { name: study.columns.decision && prepared.instrument.source === 'recorded-decision' ? study.columns.decision : 'offer (formula)', values: z };
   // a "listed in" treatment is named by the file's name only (a saved study may hold an absolute path)
