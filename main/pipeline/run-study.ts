@@ -70,6 +70,8 @@ export function columnSpec(study: Study): ColumnSpec {
     ...(c.cluster ? { cluster: { column: c.cluster, path: 'columns.cluster' } } : {}),
     covariates: (c.covariates ?? []).map((column, i) => ({ column, path: `columns.covariates[${i}]` })),
     controls: (c.controls ?? []).map((column, i) => ({ column, path: `columns.controls[${i}]` })),
+    ...(study.data.decimal ? { decimal: study.data.decimal } : {}),
+    ...(study.data.dateColumns ? { dateColumns: study.data.dateColumns } : {}),
   };
 }
 
