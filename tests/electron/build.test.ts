@@ -27,6 +27,14 @@ describe('the bundles', () => {
     for (const out of outs) expect(existsSync(join(dist, out)), out).toBe(true);
   });
 
+  it('ship no source maps (they would hand out the sources)', () => {
+    const outs = config.entries.filter((e) => e.target !== 'renderer').map((e) => e.out);
+    for (const out of outs) {
+      expect(existsSync(join(dist, `${out}.map`)), out).toBe(false);
+      expect(read(out), out).not.toMatch(/sourceMappingURL/);
+    }
+  });
+
   it('the preload is CommonJS and requires nothing but electron (a sandboxed preload can load nothing else)', () => {
     const text = read('preload.js');
     const required = [...text.matchAll(/\brequire\s*\(\s*([^)]*)\)/g)].map((m) => m[1]!.trim());
