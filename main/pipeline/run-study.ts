@@ -17,7 +17,7 @@ import { balanceChecks } from '../estimate/balance.ts';
 import { complierProfiles } from '../estimate/compliers.ts';
 import { boundaryComposition, describeAtom } from '../estimate/composition.ts';
 import { densityChecksForProgram } from '../estimate/density.ts';
-import { localLinear, singleCutoff } from '../estimate/local-linear.ts';
+import { singleCutoff, tryLocalLinear } from '../estimate/local-linear.ts';
 import { headlineDeltaIndex } from '../estimate/headline.ts';
 import { holmByDelta } from '../estimate/multiplicity.ts';
 import { deltaSensitivity } from '../estimate/sensitivity.ts';
@@ -181,7 +181,7 @@ export async function runStudy(study: Study, options: RunOptions): Promise<Check
     warnings.push(...sensitivity.warnings);
     let local = null;
     if (cutoff.applicable) {
-      local = localLinear({
+      const check = tryLocalLinear({
         running: cols.continuous[cutoff.variable]!,
         cutoff: cutoff.cutoff,
         outcome: data.outcomes[i]!,
@@ -189,7 +189,8 @@ export async function runStudy(study: Study, options: RunOptions): Promise<Check
         ...(data.treatment ? { treatment: data.treatment } : {}),
         ...(clusters ? { clusters } : {}),
       });
-      warnings.push(...local.warnings);
+      if (check.ok) { local = check.value; warnings.push(...local.warnings); }
+      else warnings.push({ code: 'local-linear-not-estimable', message: `Outcome "${o.label}": ${check.reason}` });
     }
     return { ...o, sensitivity, localLinear: local };
   });
