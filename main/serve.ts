@@ -3,7 +3,8 @@
 // X-Fenceline-Token header (401 without it, 403 with a wrong one), so no other web page and no
 // other local user can call the api. The page is served with a strict Content-Security-Policy.
 // No analysis logic lives here: requests become callApi calls (main/api.ts), the long ones on
-// worker threads (main/host/worker-runner.ts).
+// worker threads (main/host/worker-runner.ts), with the session's allow-list (main/api/access.ts):
+// files reach the api only by upload (UPLOAD_ENDPOINT), stored in the workspace.
 
 import { createHash, randomBytes, timingSafeEqual } from 'node:crypto';
 import { createWriteStream, mkdirSync, readFileSync, renameSync, rmSync, statSync } from 'node:fs';
