@@ -35,10 +35,10 @@ const config: ElectronBuildConfig = {
   entries: [
     { entry: 'main/electron/main.ts', out: 'main.js', target: 'main' },
     { entry: 'main/electron/preload.ts', out: 'preload.js', target: 'preload' },
-    // The propensity pool (main/design/parallel/pool.ts) and the job runner (main/api/worker-runner.ts)
+    // The propensity pool (main/design/parallel/pool.ts) and the job runner (main/host/worker-runner.ts)
     // look for these beside the bundle that starts them.
     { entry: 'main/design/parallel/worker.ts', out: 'worker.js', target: 'worker' },
-    { entry: 'main/api/job-worker.ts', out: 'job-worker.js', target: 'worker' },
+    { entry: 'main/host/job-worker.ts', out: 'job-worker.js', target: 'worker' },
     { entry: 'app/index.html', out: 'renderer/index.html', target: 'renderer' },
   ],
   nativeModules: ['better-sqlite3'],

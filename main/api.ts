@@ -1,18 +1,18 @@
 // The one API surface. The CLI calls these functions in-process; browser mode (serve.ts) and
 // Electron's IPC (electron/) call `callApi`, which refuses methods outside the contract and
 // arguments of the wrong shape before any work is done, then runs the method — on a worker
-// thread when the host gave a runner and the method is long (api/worker-runner.ts), otherwise
+// thread when the host gave a runner and the method is long (main/host/worker-runner.ts), otherwise
 // here. No analysis logic lives here.
 
 import { API_METHODS, OUTPUT_FORMATS, type ApiMethod, type ApiMethods, type ApiResult } from './contract/api.ts';
-import { checkShape, type Shape } from './api/args.ts';
+import { availableParallelism } from 'node:os';
+import { checkShape, workersProblem, type Shape } from './api/args.ts';
 import { refuse, type CallContext } from './api/context.ts';
 import { checkStudy, evaluateStudy, runDemo } from './api/evaluate.ts';
 import { checkDraftStudy, previewData } from './api/data.ts';
 import { boundaryMap, edgeFiguresOfRun } from './api/figures.ts';
 import { listFolder, openDialog, previewMemo, saveDialog } from './api/files.ts';
-import type { HostContext } from './api/host.ts';
-import { WORKER_METHODS } from './api/worker-runner.ts';
+import { WORKER_METHODS, type HostContext } from './api/host.ts';
 import { checkProgram, tryUnit } from './api/program.ts';
 import { loadSession, saveSession } from './api/session.ts';
 import { listSamples, openStudy, saveStudy } from './api/studies.ts';
@@ -87,6 +87,8 @@ export async function callApi(method: unknown, args: unknown, ctx: HostContext =
   const entry = METHODS[method];
   const problems = checkShape(args, entry.args, 'args');
   if (problems.length) return refuse(problems);
+  const workers = workersProblem((args as { workers?: number }).workers, 'args.workers', availableParallelism());
+  if (workers) return refuse([workers]);
   if (ctx.runInWorker && WORKER_METHODS.has(method)) return ctx.runInWorker(method, args, ctx);
   return (entry.run as Handler<ApiMethod>)(args as never, ctx);
 }

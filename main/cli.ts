@@ -2,10 +2,12 @@
 // analysis logic. Exit status: 0 done; 2 the input is wrong (one message naming where and what to
 // do, never a stack trace); 1 an internal fault (with its stack trace).
 
+import { availableParallelism } from 'node:os';
 import { parseArgs } from 'node:util';
 import { OUTPUT_FORMATS, type ApiResult, type OutputFormat, type SettingsOverrides } from './contract/api.ts';
 import type { Problem } from './rules/types.ts';
 import { checkStudy, evaluateStudy, runDemo } from './api.ts';
+import { workersProblem } from './api/args.ts';
 import { AVAILABLE_MEMO_FORMATS } from './api/evaluate.ts';
 import { progressPrinter, type ProgressPrinter } from './cli/progress.ts';
 import { formatCheckReport, formatEvaluateSummary } from './cli/summaries.ts';
@@ -159,6 +161,8 @@ async function main(argv: string[]): Promise<number> {
   // default: every memo format this version can write (results.json and units.csv are always written)
   const formats = parseFormats(values.formats, [...AVAILABLE_MEMO_FORMATS]);
   const workers = parseWhole(values.workers, '--workers');
+  const tooMany = workersProblem(workers, '--workers', availableParallelism());
+  if (tooMany) throw new InputError([tooMany]);
 
   switch (command) {
     case 'check': {

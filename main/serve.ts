@@ -3,10 +3,11 @@
 // X-Fenceline-Token header (401 without it, 403 with a wrong one), so no other web page and no
 // other local user can call the api. The page is served with a strict Content-Security-Policy.
 // No analysis logic lives here: requests become callApi calls (main/api.ts), the long ones on
-// worker threads (main/api/worker-runner.ts).
+// worker threads (main/host/worker-runner.ts), with the session's allow-list (main/api/access.ts):
+// files reach the api only by upload (UPLOAD_ENDPOINT), stored in the workspace.
 
-import { randomBytes, timingSafeEqual } from 'node:crypto';
-import { readFileSync, statSync } from 'node:fs';
+import { createHash, randomBytes, timingSafeEqual } from 'node:crypto';
+import { createWriteStream, mkdirSync, readFileSync, renameSync, rmSync, statSync } from 'node:fs';
 import { createServer, type IncomingMessage, type Server, type ServerResponse } from 'node:http';
 import type { AddressInfo } from 'node:net';
 import { homedir } from 'node:os';
@@ -14,10 +15,11 @@ import { extname, join, normalize, resolve, sep } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { parseArgs } from 'node:util';
 import buildConfig from '../electron.config.ts';
-import type { ApiResult } from './contract/api.ts';
+import { UPLOAD_ENDPOINT, UPLOAD_MAX_BYTES, UPLOAD_NAME_HEADER, type ApiResult, type UploadedFile } from './contract/api.ts';
 import { callApi } from './api.ts';
-import { JobTable } from './api/jobs.ts';
-import { createWorkerRunner } from './api/worker-runner.ts';
+import { grantUploaded, sessionGrants, uploadsDir, type AccessGrants } from './api/access.ts';
+import { JobTable } from './host/jobs.ts';
+import { createWorkerRunner } from './host/worker-runner.ts';
 
 export const TOKEN_HEADER = 'x-fenceline-token';
 const MAX_BODY_BYTES = 20 * 2 ** 20;
@@ -33,6 +35,8 @@ export interface ServeOptions {
   /** Folder of the built renderer (vite build output). */
   rendererDir?: string;
   workspaceDir?: string;
+  /** Largest upload accepted (default UPLOAD_MAX_BYTES; smaller in tests). */
+  uploadMaxBytes?: number;
 }
 
 export interface RunningServer {
@@ -71,13 +75,30 @@ function send(res: ServerResponse, status: number, body: unknown): void {
   res.end(text);
 }
 
+const tooLarge = (limit: number) => ({
+  ok: false, error: { kind: 'input', problems: [{ path: '', message: `The request is larger than ${Math.round(limit / 2 ** 20)} MB, the most this window accepts.` }] },
+});
+
+/**
+ * Answer 413 with a plain JSON message and stop reading: the client learns why instead of seeing
+ * its connection reset. The rest of the body is read and discarded (up to the socket's close,
+ * which `Connection: close` asks for once the answer is out).
+ */
+function refuseTooLarge(req: IncomingMessage, res: ServerResponse, limit: number): void {
+  req.removeAllListeners('data');
+  req.resume();
+  res.setHeader('Connection', 'close');
+  send(res, 413, tooLarge(limit));
+}
+
 function readBody(req: IncomingMessage): Promise<unknown> {
   return new Promise((done, fail) => {
     const chunks: Buffer[] = [];
     let size = 0;
+    if (Number(req.headers['content-length'] ?? 0) > MAX_BODY_BYTES) { fail(new RangeError('too large')); return; }
     req.on('data', (c: Buffer) => {
       size += c.length;
-      if (size > MAX_BODY_BYTES) { fail(new RangeError('too large')); req.destroy(); return; }
+      if (size > MAX_BODY_BYTES) { fail(new RangeError('too large')); return; }
       chunks.push(c);
     });
     req.on('end', () => {
@@ -116,13 +137,80 @@ function serveFile(res: ServerResponse, rendererDir: string, urlPath: string): v
   res.end(body);
 }
 
+/** A stored file's name: the picked name's last part, letters, digits and a few marks only, no leading dot. */
+export function safeFileName(raw: string | string[] | undefined): string {
+  let name = '';
+  try { name = decodeURIComponent(typeof raw === 'string' ? raw : ''); } catch { name = ''; }
+  name = name.split(/[\\/]/).pop() ?? '';
+  name = name.replace(/[^\p{L}\p{N} ._()-]/gu, '_').replace(/^[.\s]+/, '').replace(/\s+$/, '').slice(-120);
+  return name === '' ? 'upload' : name;
+}
+
+/**
+ * The browser's way in for a file (contract/api.ts, UPLOAD_ENDPOINT): the raw body is streamed to
+ * <workspace>/uploads/<first 16 hex digits of its SHA-256>/<name>, and the stored path joins the
+ * session's allow-list. Beyond UPLOAD_MAX_BYTES: 413, and nothing is kept.
+ */
+function receiveUpload(req: IncomingMessage, res: ServerResponse, workspaceDir: string, access: AccessGrants, limit = UPLOAD_MAX_BYTES): void {
+  const name = safeFileName(req.headers[UPLOAD_NAME_HEADER.toLowerCase()]);
+  if (Number(req.headers['content-length'] ?? 0) > limit) { refuseTooLarge(req, res, limit); return; }
+  const root = uploadsDir(workspaceDir);
+  try { mkdirSync(root, { recursive: true }); } catch (e) {
+    send(res, 500, { ok: false, error: { kind: 'input', problems: [{ path: '', message: `The workspace folder cannot take the file (${(e as NodeJS.ErrnoException).code ?? 'write error'}).` }] } });
+    return;
+  }
+  const temp = join(root, `.incoming-${randomBytes(8).toString('hex')}.part`);
+  const out = createWriteStream(temp, { flags: 'wx' });
+  const hash = createHash('sha256');
+  let bytes = 0;
+  let failed = false;
+  const fail = (status: number, body: unknown) => {
+    if (failed) return;
+    failed = true;
+    out.destroy();
+    rmSync(temp, { force: true });
+    if (status === 413) refuseTooLarge(req, res, limit); else send(res, status, body);
+  };
+  req.on('data', (c: Buffer) => {
+    if (failed) return;
+    bytes += c.length;
+    if (bytes > limit) { fail(413, null); return; }
+    hash.update(c);
+    if (!out.write(c)) { req.pause(); out.once('drain', () => req.resume()); }
+  });
+  req.on('error', () => fail(400, { error: 'The upload was interrupted.' }));
+  out.on('error', (e: NodeJS.ErrnoException) => fail(500, { ok: false, error: { kind: 'input', problems: [{ path: '', message: `The file could not be stored in the workspace (${e.code ?? 'write error'}).` }] } }));
+  req.on('end', () => {
+    if (failed) return;
+    out.end(() => {
+      if (failed) return;
+      const sha256 = hash.digest('hex');
+      const dir = join(root, sha256.slice(0, 16));
+      const path = join(dir, name);
+      try {
+        mkdirSync(dir, { recursive: true });
+        renameSync(temp, path);
+      } catch (e) {
+        rmSync(temp, { force: true });
+        send(res, 500, { ok: false, error: { kind: 'input', problems: [{ path: '', message: `The file could not be stored in the workspace (${(e as NodeJS.ErrnoException).code ?? 'write error'}).` }] } });
+        return;
+      }
+      grantUploaded(access, path);
+      const answer: ApiResult<UploadedFile> = { ok: true, value: { path, name, bytes, sha256 } };
+      send(res, 200, answer);
+    });
+  });
+}
+
 export async function startServer(options: ServeOptions = {}): Promise<RunningServer> {
   const tokenText = randomBytes(32).toString('base64url');
   const token = Buffer.from(tokenText, 'utf8');
   const rendererDir = resolve(options.rendererDir ?? join(ROOT, buildConfig.outDir, 'renderer'));
   const workspaceDir = resolve(options.workspaceDir ?? defaultWorkspaceDir());
   // Long methods (imports, the workspace, estimation) run on worker threads, so this loop keeps answering.
-  const host = { host: 'browser' as const, workspaceDir, runInWorker: createWorkerRunner() };
+  // The session's allow-list (main/api/access.ts): the page names no path it was not given.
+  const access = sessionGrants(workspaceDir);
+  const host = { host: 'browser' as const, workspaceDir, access, runInWorker: createWorkerRunner() };
   const fault = (e: unknown): ApiResult<unknown> => { console.error('Fenceline internal fault:', e); return FAULT; };
   const jobs = new JobTable(callApi, host, fault);
   let port = 0;
@@ -144,13 +232,16 @@ export async function startServer(options: ServeOptions = {}): Promise<RunningSe
     const origin = req.headers.origin;
     if (origin !== undefined && origin !== `http://127.0.0.1:${port}` && origin !== `http://localhost:${port}`) { send(res, 403, { error: 'wrong origin' }); return; }
     if (req.method !== 'POST') { send(res, 405, { error: 'Use POST.' }); return; }
-    void handleApi(req, res, url.split('?')[0]!);
+    const route = url.split('?')[0]!;
+    if (route === UPLOAD_ENDPOINT) { receiveUpload(req, res, workspaceDir, access, options.uploadMaxBytes); return; }
+    void handleApi(req, res, route);
   });
 
   async function handleApi(req: IncomingMessage, res: ServerResponse, path: string): Promise<void> {
     let body: unknown;
     try { body = await readBody(req); } catch (e) {
-      send(res, e instanceof RangeError ? 413 : 400, { ok: false, error: { kind: 'input', problems: [{ path: '', message: e instanceof RangeError ? 'The request is too large.' : 'The request is not JSON.' }] } });
+      if (e instanceof RangeError) refuseTooLarge(req, res, MAX_BODY_BYTES);
+      else send(res, 400, { ok: false, error: { kind: 'input', problems: [{ path: '', message: 'The request is not JSON.' }] } });
       return;
     }
     const b = (body ?? {}) as { method?: unknown; args?: unknown };

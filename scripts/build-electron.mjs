@@ -9,6 +9,7 @@
 // (config.external) and are loaded from node_modules. Needs no Electron runtime.
 // Run through tsx (it reads electron.config.ts): `node --import tsx scripts/build-electron.mjs [--no-renderer]`.
 import { spawnSync } from 'node:child_process';
+import { rmSync } from 'node:fs';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { build } from 'esbuild';
@@ -29,6 +30,7 @@ export async function buildElectron({ outDir = join(root, config.outDir), render
     if (e.target === 'renderer') continue;
     const outfile = join(outDir, e.out);
     const preload = e.target === 'preload';
+    rmSync(`${outfile}.map`, { force: true }); // left by an older build that wrote maps
     await build({
       entryPoints: [join(root, e.entry)],
       outfile,
@@ -38,7 +40,8 @@ export async function buildElectron({ outDir = join(root, config.outDir), render
       format: preload ? 'cjs' : 'esm',
       external: preload ? ['electron'] : config.external,
       ...(preload ? {} : { banner: { js: ESM_BANNER } }),
-      sourcemap: 'linked',
+      // No source maps in what ships (they would hand out the sources, comments included); debug from the sources with tsx.
+      sourcemap: false,
       legalComments: 'linked',
       logLevel: quiet ? 'error' : 'warning',
     });

@@ -53,7 +53,7 @@ const LOW = ['main/rules', 'main/contract'];
 const LAYERS = {
   'main/rules': ['main/contract'],
   'main/contract': ['main/rules', 'main/design', 'main/estimate', 'main/report'],
-  'main/output': ['main/contract'],
+  'main/output': ['main/contract', 'main/rules'],
   'main/design': [...LOW],
   'main/estimate': [...LOW, 'main/design'],
   'main/report': [...LOW, 'main/design', 'main/estimate', 'main/output'],
@@ -67,9 +67,6 @@ const LAYERS = {
 };
 const TOP = [...LAYERS['main/api'], 'main/api', 'main/api.ts', 'main/host', 'main/cli', 'main/cli.ts', 'main/serve.ts', 'main/electron', 'electron.config.ts', 'package.json'];
 for (const top of ['main/host', 'main/api.ts', 'main/cli', 'main/cli.ts', 'main/serve.ts', 'main/electron']) LAYERS[top] = TOP;
-// Threading still in api/ until it moves to main/host/.
-LAYERS['main/api/job-worker.ts'] = TOP;
-LAYERS['main/api/job-worker-entry.mjs'] = TOP;
 const folderOf = (p) => Object.keys(LAYERS).filter((d) => under(p, [d])).sort((a, b) => b.length - a.length)[0] ?? null;
 
 const problems = [];

@@ -33,3 +33,12 @@ export function checkShape(value: unknown, shape: Shape, path: string, out: Prob
   }
   return out;
 }
+
+/**
+ * Propensity worker threads a call may ask for: 0 (none) up to the computer's cores. More threads
+ * than cores only add memory and switching (each loads the data's columns), so more are refused.
+ */
+export function workersProblem(workers: number | undefined, at: string, cores: number): Problem | null {
+  if (workers === undefined || (workers >= 0 && workers <= cores)) return null;
+  return { path: at, message: `${at} must be from 0 (no worker threads) to ${cores}, the cores of this computer; found ${workers}.` };
+}

@@ -11,7 +11,9 @@ import { getOwn, isPlainObject } from '../rules/json-read.ts';
 import { checkValidatedStudy } from './evaluate.ts';
 import { validateStudy } from '../studyfile/validate.ts';
 import { suggestRoles, type ColumnFacts, type ProgramColumns } from '../data/suggest-roles.ts';
-import { refuse, type CallContext } from './context.ts';
+import { readProblem, refuseIf, studyFilesProblems } from './access.ts';
+import { refuse } from './context.ts';
+import type { HostContext } from './host.ts';
 
 const PREVIEW_ROWS = 20;
 const DISTINCT_LOOK = 1000;
@@ -56,8 +58,10 @@ function programColumns(program: unknown): ProgramColumns | null {
   return { variables };
 }
 
-export async function previewData(args: DataPreviewArgs, ctx: CallContext = {}): Promise<ApiResult<DataPreview>> {
+export async function previewData(args: DataPreviewArgs, ctx: HostContext = {}): Promise<ApiResult<DataPreview>> {
   const path = resolve(args.path);
+  const denied = refuseIf(readProblem(ctx, path, 'path'));
+  if (denied) return denied;
   const read = await readTable(path, {
     ...(args.sheet ? { sheet: args.sheet } : {}),
     ...(args.headerRow !== undefined ? { headerRow: args.headerRow } : {}),
@@ -89,7 +93,7 @@ export async function previewData(args: DataPreviewArgs, ctx: CallContext = {}):
 }
 
 /** The validation report of a study before it is saved or run (study.check works on a saved file). */
-export async function checkDraftStudy(args: DataCheckArgs, ctx: CallContext = {}): Promise<ApiResult<CheckReport>> {
+export async function checkDraftStudy(args: DataCheckArgs, ctx: HostContext = {}): Promise<ApiResult<CheckReport>> {
   const checked = validateStudy(args.study);
   if (!checked.ok) return refuse(checked.problems);
   const study = checked.value;
@@ -97,5 +101,8 @@ export async function checkDraftStudy(args: DataCheckArgs, ctx: CallContext = {}
   if (!isAbsolute(study.data.path) && args.baseDir === undefined) {
     return refuse([{ path: 'data.path', message: `The data file ${study.data.path} is given without its folder. Choose the file again so its full location is known.` }]);
   }
+  // A draft comes from the page: every file it names must be allowed itself (it vouches for nothing).
+  const denied = studyFilesProblems(ctx, study, baseDir);
+  if (denied.length) return refuse(denied);
   return checkValidatedStudy(study, baseDir, ctx);
 }

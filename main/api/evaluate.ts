@@ -7,28 +7,37 @@ import type {
 } from '../contract/api.ts';
 import type { Study } from '../contract/study.ts';
 import { Cancelled, validateSettings } from '../design/propensity.ts';
+import { inputClashes } from '../output/input-clash.ts';
 import { writeRun } from '../pipeline/record.ts';
 import { prepareStudy, runStudy } from '../pipeline/run-study.ts';
+import { MEMO_FILE_NAMES } from '../report/memo-files.ts';
 import { describeProgram } from '../rules/wording.ts';
 import { studyFingerprint } from '../studyfile/fingerprint.ts';
-import { loadStudyFile } from '../studyfile/load.ts';
 import { SAMPLES_DIR } from '../resources.ts';
+import { loadAllowedStudy, refuseIf, studyDataPaths, workspaceProblem, writeProblem } from './access.ts';
 import { refuse, type CallContext } from './context.ts';
+import type { HostContext } from './host.ts';
 
 const cancelled = (e: Cancelled): ApiResult<never> => ({ ok: false, error: { kind: 'cancelled', problems: [{ path: '', message: e.message }] } });
 
 /** The memo formats this version can write (docs/cli.md: memo.pdf, memo.html, memo.docx, tables.xlsx). */
 export const AVAILABLE_MEMO_FORMATS: readonly OutputFormat[] = ['pdf', 'html', 'docx', 'xlsx'];
 
-export async function checkStudy(args: CheckArgs, ctx: CallContext = {}): Promise<ApiResult<CheckReport>> {
-  const loaded = loadStudyFile(args.studyPath);
+export async function checkStudy(args: CheckArgs, ctx: HostContext = {}): Promise<ApiResult<CheckReport>> {
+  const loaded = loadAllowedStudy(ctx, args.studyPath);
   if (!loaded.ok) return refuse(loaded.problems);
   return checkValidatedStudy(loaded.value.study, loaded.value.baseDir, ctx);
 }
 
 /** Read, map and prepare a validated study's data (the same stages as evaluate) and report what will be used, estimating nothing. */
 export async function checkValidatedStudy(study: Study, baseDir: string, ctx: CallContext = {}): Promise<ApiResult<CheckReport>> {
-  const ready = await prepareStudy(study, { baseDir, ...ctx });
+  let ready;
+  try {
+    ready = await prepareStudy(study, { baseDir, ...ctx });
+  } catch (e) {
+    if (e instanceof Cancelled) return cancelled(e);
+    throw e;
+  }
   if (!ready.ok) return refuse(ready.problems);
   const { read: { mapped, table }, prepared } = ready.value;
   return {
@@ -43,7 +52,7 @@ export async function checkValidatedStudy(study: Study, baseDir: string, ctx: Ca
       outcomesMissing: study.columns.outcomes.map((o, i) => ({ column: o.column, count: prepared.data.outcomeMissing[i]?.count ?? 0 })),
       fidelity: prepared.fidelity,
       eligible: prepared.eligible.reduce((a, b) => a + b, 0),
-      notes: mapped.notes,
+      notes: [...mapped.notes, ...prepared.warnings],
       ruleWording: describeProgram(study.program),
     },
   };
@@ -57,17 +66,28 @@ function withOverrides(study: Study, args: EvaluateArgs): ApiResult<Study> {
   return { ok: true, value: { ...study, settings } };
 }
 
-export async function evaluateStudy(args: EvaluateArgs, ctx: CallContext = {}): Promise<ApiResult<EvaluateReport>> {
+export async function evaluateStudy(args: EvaluateArgs, ctx: HostContext = {}): Promise<ApiResult<EvaluateReport>> {
   const startedAt = new Date().toISOString();
   const formats = args.formats ?? [];
   const unavailable = formats.filter((f) => !AVAILABLE_MEMO_FORMATS.includes(f));
   if (unavailable.length) {
     return refuse([{ path: '--formats', message: `This version cannot write ${unavailable.join(', ')} memos yet; use --formats none for results.json and units.csv.` }]);
   }
-  const loaded = loadStudyFile(args.studyPath);
+  const denied = refuseIf(writeProblem(ctx, args.outDir, 'outDir'), args.workspacePath !== undefined ? workspaceProblem(ctx, args.workspacePath, 'workspacePath') : null);
+  if (denied) return denied;
+  const loaded = loadAllowedStudy(ctx, args.studyPath);
   if (!loaded.ok) return refuse(loaded.problems);
   const study = withOverrides(loaded.value.study, args);
   if (!study.ok) return study;
+  // Outputs never replace the study's inputs (its files, its data, the workspace database): refused before the run.
+  const inputs = [
+    { path: loaded.value.studyPath, role: 'the study file' },
+    ...(loaded.value.study.programPath ? [{ path: resolve(loaded.value.baseDir, loaded.value.study.programPath), role: 'the program file' }] : []),
+    ...studyDataPaths(loaded.value.study, loaded.value.baseDir).map((d) => ({ path: d.path, role: 'the data file' })),
+    ...(args.workspacePath ? [{ path: args.workspacePath, role: 'the workspace database' }] : []),
+  ];
+  const early = inputClashes(resolve(args.outDir), ['results.json', 'units.csv', ...formats.map((f) => MEMO_FILE_NAMES[f])], inputs);
+  if (early.length) return refuse(early);
   let run;
   try {
     run = await runStudy(study.value, { baseDir: loaded.value.baseDir, ...ctx, ...(args.workers !== undefined ? { workers: args.workers } : {}) });
@@ -85,6 +105,8 @@ export async function evaluateStudy(args: EvaluateArgs, ctx: CallContext = {}): 
       formats,
       ...(args.workspacePath ? { workspacePath: resolve(args.workspacePath) } : {}),
       startedAt,
+      // Checked again with the files' real names, just before writing.
+      beforeWrite: (names) => inputClashes(resolve(args.outDir), names, inputs),
       ...(ctx.onProgress ? { onProgress: ctx.onProgress } : {}),
       ...(ctx.signal ? { signal: ctx.signal } : {}),
     });
@@ -97,7 +119,7 @@ export async function evaluateStudy(args: EvaluateArgs, ctx: CallContext = {}): 
 }
 
 /** The bundled sample study end to end. */
-export async function runDemo(args: DemoArgs, ctx: CallContext = {}): Promise<ApiResult<EvaluateReport>> {
+export async function runDemo(args: DemoArgs, ctx: HostContext = {}): Promise<ApiResult<EvaluateReport>> {
   const studyPath = join(SAMPLES_DIR, 'winter-credit', 'study.json');
   return evaluateStudy({ studyPath, outDir: args.outDir, ...(args.formats ? { formats: args.formats } : {}), ...(args.workers !== undefined ? { workers: args.workers } : {}) }, ctx);
 }

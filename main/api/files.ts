@@ -5,6 +5,7 @@
 import { readFileSync, readdirSync, statSync } from 'node:fs';
 import { basename, dirname, extname, join, resolve } from 'node:path';
 import type { ApiResult, DialogAnswer, DialogArgs, FilesList, FilesListArgs, MemoPreview, MemoPreviewArgs } from '../contract/api.ts';
+import { grantPicked, grantSaved, mayBrowse, readProblem, refuseIf } from './access.ts';
 import { refuse } from './context.ts';
 import type { HostContext } from './host.ts';
 
@@ -12,8 +13,11 @@ const SHOWN: Record<FilesListArgs['kind'], readonly string[]> = { study: ['.json
 const MAX_ENTRIES = 2000;
 const MAX_MEMO_BYTES = 50 * 2 ** 20;
 
-export async function listFolder(args: FilesListArgs): Promise<ApiResult<FilesList>> {
+export async function listFolder(args: FilesListArgs, ctx: HostContext = {}): Promise<ApiResult<FilesList>> {
   const dir = resolve(args.dir);
+  if (ctx.access && !mayBrowse(ctx.access, dir)) {
+    return refuse([{ path: 'dir', message: `This window lists only the workspace's own folders and the folders of files you chose; ${dir} is neither. Use Open (or drop the file on the window) to bring in another file.` }]);
+  }
   let names: string[];
   try {
     if (!statSync(dir).isDirectory()) return refuse([{ path: 'dir', message: `${dir} is a file, not a folder.` }]);
@@ -38,19 +42,37 @@ export async function listFolder(args: FilesListArgs): Promise<ApiResult<FilesLi
 
 const NO_DIALOGS = 'This window has no file dialogs (browser mode): browse to the file, or type its full path.';
 
+/** A dialog's starting place comes from the page: only a folder the page may already see. */
+function defaultPathProblem(args: DialogArgs, ctx: HostContext): ApiResult<never> | null {
+  if (args.defaultPath === undefined || !ctx.access) return null;
+  const p = resolve(args.defaultPath);
+  if (mayBrowse(ctx.access, p) || mayBrowse(ctx.access, dirname(p))) return null;
+  return refuse([{ path: 'defaultPath', message: `The dialog may start only in the workspace's folders or beside a file you chose; ${p} is neither. Leave the starting place out.` }]);
+}
+
 export async function openDialog(args: DialogArgs, ctx: HostContext = {}): Promise<ApiResult<DialogAnswer>> {
   if (!ctx.dialogs) return refuse([{ path: '', message: NO_DIALOGS }]);
-  return { ok: true, value: { path: await ctx.dialogs.openFile(args) } };
+  const denied = defaultPathProblem(args, ctx);
+  if (denied) return denied;
+  const path = await ctx.dialogs.openFile(args);
+  if (path && ctx.access) grantPicked(ctx.access, path, args.purpose);
+  return { ok: true, value: { path } };
 }
 
 export async function saveDialog(args: DialogArgs, ctx: HostContext = {}): Promise<ApiResult<DialogAnswer>> {
   if (!ctx.dialogs) return refuse([{ path: '', message: NO_DIALOGS }]);
-  return { ok: true, value: { path: await ctx.dialogs.saveFile(args) } };
+  const denied = defaultPathProblem(args, ctx);
+  if (denied) return denied;
+  const path = await ctx.dialogs.saveFile(args);
+  if (path && ctx.access) grantSaved(ctx.access, path);
+  return { ok: true, value: { path } };
 }
 
 /** The memo's HTML text, for a preview the renderer shows without scripts. Only .html files are read. */
-export async function previewMemo(args: MemoPreviewArgs): Promise<ApiResult<MemoPreview>> {
+export async function previewMemo(args: MemoPreviewArgs, ctx: HostContext = {}): Promise<ApiResult<MemoPreview>> {
   const path = resolve(args.path);
+  const denied = refuseIf(readProblem(ctx, path, 'path'));
+  if (denied) return denied;
   if (!/\.html?$/i.test(path)) return refuse([{ path: 'path', message: `${basename(path)} is not an HTML memo; the preview shows the .html memo a run wrote.` }]);
   try {
     const size = statSync(path).size;

@@ -8,8 +8,9 @@ import type { ApiResult, SamplesList, StudyOpenArgs, StudyOpened, StudySaveArgs,
 import type { Study } from '../contract/study.ts';
 import { writeFilesAtomically } from '../output/write-files.ts';
 import { getOwn, isPlainObject } from '../rules/json-read.ts';
-import { loadStudyFile, parseJsonText } from '../studyfile/load.ts';
+import { parseJsonText } from '../studyfile/load.ts';
 import { validateStudy } from '../studyfile/validate.ts';
+import { grantStudyFiles, loadAllowedStudy, readProblem, refuseIf, studyFilesProblems, writeProblem } from './access.ts';
 import { refuse } from './context.ts';
 import type { HostContext } from './host.ts';
 import { rememberStudy } from './workspace.ts';
@@ -34,14 +35,18 @@ function readJson(path: string): ApiResult<unknown> {
 
 export async function openStudy(args: StudyOpenArgs, ctx: HostContext = {}): Promise<ApiResult<StudyOpened>> {
   const path = resolve(args.path);
+  const denied = refuseIf(readProblem(ctx, path, 'path'));
+  if (denied) return denied;
   if (!/\.json$/i.test(path)) return refuse([{ path: 'path', message: `${basename(path)} is not a study file: a study file is JSON text ending in .json. To bring in data, use the Data step.` }]);
   const raw = readJson(path);
   if (!raw.ok) return raw;
   const baseDir = dirname(path);
-  const loaded = loadStudyFile(path);
+  const loaded = loadAllowedStudy(ctx, path, 'path');
   const title = isPlainObject(raw.value) && typeof getOwn(raw.value, 'title') === 'string' ? String(getOwn(raw.value, 'title')) : basename(path);
   rememberStudy(ctx, path, title);
   if (loaded.ok) {
+    // A study the user picked vouches for its data files: the page may now name them (data.check, study.save).
+    if (ctx.access) grantStudyFiles(ctx.access, loaded.value.study, baseDir, path);
     const { programPath: _separateFile, ...study } = loaded.value.study;
     return { ok: true, value: { path, baseDir, study, problems: [] } };
   }
@@ -77,7 +82,12 @@ export async function saveStudy(args: StudySaveArgs, ctx: HostContext = {}): Pro
   if (!/\.json$/i.test(path)) return refuse([{ path: 'path', message: `Save the study under a name ending in .json (for example ${basename(path).replace(/\.[^.]*$/, '')}.json).` }]);
   const checked = validateStudy(args.study);
   if (!checked.ok) return refuse(checked.problems);
+  const denied = refuseIf(writeProblem(ctx, path, 'path'));
+  if (denied) return denied;
   const { programPath: _separateFile, ...study } = rebaseStudy(checked.value, args.baseDir ?? dirname(path), dirname(path));
+  // Whatever the page wrote, the saved study may name only files this session may read.
+  const unread = studyFilesProblems(ctx, study, dirname(path));
+  if (unread.length) return refuse(unread);
   try {
     writeFilesAtomically(dirname(path), [{ name: basename(path), content: JSON.stringify(study, null, 2) + '\n' }]);
   } catch (e) {

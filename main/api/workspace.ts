@@ -10,6 +10,7 @@ import { Cancelled } from '../design/propensity.ts';
 import { exportStoredMemo } from '../pipeline/record.ts';
 import { studyFingerprint } from '../studyfile/fingerprint.ts';
 import { validateStudy } from '../studyfile/validate.ts';
+import { refuseIf, writeProblem } from './access.ts';
 import { storedRunView } from './figures.ts';
 import type { Results } from '../contract/results.ts';
 import { writeFilesAtomically } from '../output/write-files.ts';
@@ -116,6 +117,8 @@ export async function recordedRun(args: WorkspaceRunArgs, ctx: HostContext = {})
 
 /** Write a stored run's memo again into a folder the analyst chose; the study is not run again. */
 export async function exportRunMemo(args: RunExportMemoArgs, ctx: HostContext = {}): Promise<ApiResult<RunExportedMemo>> {
+  const denied = refuseIf(writeProblem(ctx, args.outDir, 'outDir'));
+  if (denied) return denied;
   const stored = storedRunView(args.runId, ctx);
   if (!stored.ok) return refuse(stored.problems);
   const outDir = resolve(args.outDir);
@@ -124,7 +127,8 @@ export async function exportRunMemo(args: RunExportMemoArgs, ctx: HostContext = 
       formats: args.formats, startedAt: new Date().toISOString(),
       ...(ctx.onProgress ? { onProgress: ctx.onProgress } : {}), ...(ctx.signal ? { signal: ctx.signal } : {}),
     });
-    return { ok: true, value: { outDir, files } };
+    if (!files.ok) return refuse(files.problems);
+    return { ok: true, value: { outDir, files: files.value } };
   } catch (e) {
     if (e instanceof Cancelled) return { ok: false, error: { kind: 'cancelled', problems: [{ path: '', message: 'Writing the memo was cancelled; no file was written.' }] } };
     throw e;

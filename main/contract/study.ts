@@ -51,6 +51,10 @@ export interface StudyData {
   sheet?: string;
   headerRow?: number;
   join?: JoinSource[];
+  /** Decimal mark of numbers written as text (default: found per column; "," reads 1.234,5 as 1234.5). */
+  decimal?: ',' | '.';
+  /** Columns that hold dates on purpose (a continuous rule input may hold dates only if listed). */
+  dateColumns?: string[];
 }
 
 /** A study after validation: the program resolved to an object, settings filled with defaults. */

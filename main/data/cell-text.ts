@@ -1,8 +1,9 @@
 // Reading one cell's text as the value an analyst means: a plain number, a number written
-// with thousands separators or a currency sign, a date in ISO 8601 form, TRUE/FALSE, an Excel
-// error value, or text. Pure; no Node modules.
+// with thousands separators or a currency sign, a number written the European way (decimal
+// comma, point or space groups: "1.234,5"), a percentage ("12,5 %"), a date in ISO 8601 form,
+// TRUE/FALSE, an Excel error value, or text. Pure; no Node modules.
 
-import { CellKind, type CellKindCode } from './types.ts';
+import { CellKind, type CellKindCode, type RawColumn } from './types.ts';
 
 /** Scratch result, reused between calls so that a million-row import allocates nothing per cell. */
 export interface ParsedCell {
@@ -28,6 +29,15 @@ const COMMA_GROUPED = /^\d{1,3}(?:,\d{3})+(?:\.\d+)?$/;
 // decimal mark may be a point or a comma (as in "1 234,50").
 const SPACE_GROUPED = /^\d{1,3}(?:[ \u00a0\u202f\u2009]\d{3})+(?:[.,]\d+)?$/;
 const PLAIN_DIGITS = /^(?:\d+(?:\.\d*)?|\.\d+)$/;
+// A decimal comma that cannot be a thousands comma: point groups before it ("1.234,5"), or not
+// exactly three digits after it ("12,5", "0,25", "3,1416").
+const DECIMAL_COMMA = /^(?:\d{1,3}(?:\.\d{3})+,\d+|\d+,(?:\d{1,2}|\d{4,}))$/;
+// Forms that read differently with a decimal point and with a decimal comma: "1.234", "1,234",
+// "12.345.678" (a point read as grouping only in a decimal-comma column).
+const AMBIGUOUS_GROUPS = /^[+-]?\d{1,3}(?:[.,]\d{3})+$/;
+// Any number with a decimal comma and point or space groups, for a column known to use them.
+const COMMA_NUMBER = /^(?:\d{1,3}(?:[. \u00a0\u202f\u2009]\d{3})+|\d+)(?:,\d+)?$/;
+const PERCENT = /\s*%$/;
 const MS_PER_DAY = 86_400_000;
 
 /** Days since 1970-01-01 of an ISO date (time of day as a fraction), or NaN if not a real date. */
@@ -82,8 +92,12 @@ export function formattedNumber(text: string): number {
     s = s.slice(1).trim();
   }
   // A currency sign may also stand after the sign ("-$5", handled above by removing all signs).
+  let hadPercent = false;
+  if (!hadCurrency && PERCENT.test(s)) { hadPercent = true; s = s.replace(PERCENT, ''); }
   let body: string;
   if (COMMA_GROUPED.test(s)) body = s.replace(/,/g, '');
+  else if (DECIMAL_COMMA.test(s)) body = s.replace(/\./g, '').replace(',', '.');
+  else if (hadPercent && PLAIN_DIGITS.test(s)) body = s;
   else if (SPACE_GROUPED.test(s)) body = s.replace(/[ \u00a0\u202f\u2009]/g, '').replace(',', '.');
   else if ((hadCurrency || negative) && PLAIN_DIGITS.test(s)) body = s;
   else return Number.NaN;
@@ -106,7 +120,7 @@ export function parseCellText(raw: string, out: ParsedCell): ParsedCell {
     out.value = Number(text);
     // Keep the written form where the number loses it: leading zeros ("00102") and digit
     // strings beyond double precision (account numbers), both typical of IDs.
-    out.keepText = /^[+-]?0\d/.test(text) || /\d{16,}/.test(text);
+    out.keepText = /^[+-]?0\d/.test(text) || /\d{16,}/.test(text) || AMBIGUOUS_GROUPS.test(text);
     return out;
   }
   if (text.charCodeAt(0) === 35 /* # */ && EXCEL_ERROR.test(text)) {
@@ -134,10 +148,68 @@ export function parseCellText(raw: string, out: ParsedCell): ParsedCell {
   if (!Number.isNaN(formatted)) {
     out.kind = CellKind.TextNumber;
     out.value = formatted;
+    // Kept so a column written with decimal commas can be told apart and read again (decimalCommaColumn).
+    out.keepText = text.includes(',') || text.includes('%');
     return out;
   }
   out.kind = CellKind.Text;
   out.value = Number.NaN;
   out.keepText = true;
   return out;
+}
+
+/** A number written with a decimal comma and point or space groups ("1.234,5", "1 234", "12,5 %"), or NaN. */
+export function decimalCommaNumber(text: string): number {
+  let s = text.trim();
+  let negative = false;
+  if (s.startsWith('-') || s.startsWith('\u2212')) { negative = true; s = s.slice(1).trim(); } else if (s.startsWith('+')) s = s.slice(1).trim();
+  s = s.replace(PERCENT, '');
+  if (!COMMA_NUMBER.test(s)) return Number.NaN;
+  const value = Number(s.replace(/[. \u00a0\u202f\u2009]/g, '').replace(',', '.'));
+  return Number.isFinite(value) ? (negative ? -value : value) : Number.NaN;
+}
+
+export interface DecimalCommaReading {
+  /** Cells whose value changed when read with the decimal comma ("1.234" → 1234, "1,5" stays 1.5). */
+  changed: number;
+  /** Cells written with a decimal comma or a percent sign, and one of them as written. */
+  written: number;
+  example: string;
+  percent: boolean;
+}
+
+/**
+ * A column written the European way: it has cells that can only be decimal commas ("12,5",
+ * "1.234,5") and none that can only be decimal points (a fraction written "12.5" or "1,234.5"),
+ * or the study says so (`"decimal": ","` under data). Its ambiguous cells ("1.234") are then read
+ * with the decimal comma too, in place. Returns what was read, or null when the column is not such
+ * a column.
+ */
+export function decimalCommaColumn(column: RawColumn, forced: boolean): DecimalCommaReading | null {
+  const texts = column.texts;
+  let comma = 0, point = 0, percent = 0;
+  let example = '';
+  for (let r = 0; r < column.kinds.length; r++) {
+    const k = column.kinds[r];
+    const t = texts?.[r]?.trim();
+    if (k === CellKind.Number && t === undefined) { if (!Number.isInteger(column.numbers[r]!)) point++; continue; }
+    if (t === undefined || (k !== CellKind.Number && k !== CellKind.TextNumber)) continue;
+    const body = t.replace(/^[+\-\u2212]/, '').replace(PERCENT, '');
+    if (t.endsWith('%')) percent++;
+    if (DECIMAL_COMMA.test(body)) { comma++; if (!example) example = t; } else if (/\d,\d{3}\.\d/.test(body)) point++;
+  }
+  if (!forced && (comma === 0 || point > 0)) return null;
+  let changed = 0;
+  for (let r = 0; r < column.kinds.length; r++) {
+    const t = texts?.[r];
+    const k = column.kinds[r];
+    if (t === undefined || (k !== CellKind.Number && k !== CellKind.TextNumber && k !== CellKind.Text)) continue;
+    const v = decimalCommaNumber(t);
+    if (Number.isNaN(v)) continue;
+    if (v !== column.numbers[r] || k === CellKind.Text) changed++;
+    column.numbers[r] = v;
+    column.kinds[r] = CellKind.TextNumber;
+  }
+  if (comma === 0 && changed === 0) return null;
+  return { changed, written: comma, example: example || (texts?.find((t) => t !== undefined) ?? ''), percent: percent > 0 };
 }

@@ -6,6 +6,7 @@
 
 import type { Checked, Problem } from '../rules/types.ts';
 import { displayText, findColumn, linkKey, missingColumnMessage } from './find-column.ts';
+import { decimalCommaColumn, decimalCommaNumber } from './cell-text.ts';
 import { DUPLICATE_KEY, findJoinedSource, matchUnits, NO_ROW, type JoinedTable, type JoinSourceRef, type UnitMatch } from './join.ts';
 import { listRows } from './locate.ts';
 import { CellKind, type RawColumn, type RawTable, type TableNote } from './types.ts';
@@ -20,6 +21,10 @@ export interface ColumnSpec {
   cluster?: { column: string; path: string };
   covariates: Array<{ column: string; path: string }>;
   controls: Array<{ column: string; path: string }>;
+  /** The study's decimal mark for numbers written as text (data.decimal); absent: found per column. */
+  decimal?: ',' | '.';
+  /** Columns that hold dates on purpose (data.dateColumns). */
+  dateColumns?: string[];
 }
 
 export interface ExclusionGroup {
@@ -183,6 +188,32 @@ export function mapStudyColumns(table: RawTable, spec: ColumnSpec, joins: readon
   const cluster = spec.cluster === undefined ? null : resolve(spec.cluster.column, spec.cluster.path);
   const covariates = spec.covariates.map((c) => resolve(c.column, c.path));
   const controls = spec.controls.map((c) => resolve(c.column, c.path));
+  // Dates in a continuous rule input are refused unless the study says the column holds dates on
+  // purpose: a date read as days since 1970 in an income or score column is almost always a typing slip.
+  spec.variables.forEach((v, k) => {
+    const res = variables[k];
+    if (v.type !== 'continuous' || !res) return;
+    if ((spec.dateColumns ?? []).some((d) => d.trim().toLowerCase() === res.header.trim().toLowerCase() || d.trim().toLowerCase() === v.column.trim().toLowerCase())) return;
+    let dates = 0, first = -1;
+    for (let r = 0; r < res.column.kinds.length; r++) if (res.column.kinds[r] === CellKind.Date) { dates++; if (first < 0) first = r; }
+    if (dates === 0) return;
+    problems.push({
+      path: v.path,
+      message: `${res.header} holds ${dates.toLocaleString('en-US')} date${dates > 1 ? 's' : ''} (such as ${displayText(res.column, first)}), but it is the continuous rule input "${v.key}". If it is a date on purpose, add "${res.header}" to "dateColumns" under data (dates are read as days since 1970-01-01); otherwise correct those cells.`,
+    });
+  });
+  // Numbers written the European way (decimal comma, point or space groups, a percent sign).
+  const readWithComma = new Set<RawColumn>();
+  for (const res of [...variables.filter((_, k) => spec.variables[k]!.type === 'continuous'), ...outcomes, ...covariates, ...controls]) {
+    if (!res || readWithComma.has(res.column) || spec.decimal === '.') continue;
+    readWithComma.add(res.column);
+    const read = decimalCommaColumn(res.column, spec.decimal === ',');
+    if (!read || (read.written === 0 && read.changed === 0)) continue;
+    notes.push({
+      code: 'decimal-comma',
+      message: `${res.header}: numbers written with a decimal comma${read.percent ? ' or a percent sign' : ''} (such as "${read.example}") were read that way (${decimalCommaNumber(read.example).toLocaleString('en-US')}${read.percent ? '; a percentage is read as its number of percent' : ''}). If this column means otherwise, set "decimal": "." under data.`,
+    });
+  }
   if (problems.length > 0 || idFound === null) return { ok: false, problems };
   if (looseMatches.length > 0) notes.push({ code: 'column-name-case', message: `Column names matched ignoring case and spaces: ${looseMatches.join('; ')}.` });
 

@@ -14,8 +14,9 @@ import buildConfig from '../../electron.config.ts';
 import type { DialogArgs } from '../contract/api.ts';
 import { IPC_CHANNELS, type ShellEvent } from '../contract/bridge.ts';
 import { callApi } from '../api.ts';
+import { grantPicked, sessionGrants, type AccessGrants } from '../api/access.ts';
 import type { HostDialogs } from '../api/host.ts';
-import { createWorkerRunner } from '../api/worker-runner.ts';
+import { createWorkerRunner } from '../host/worker-runner.ts';
 import { APP_ENTRY, APP_SCHEME, isContractMethod, mayNavigate, mayRequest, refusedMethod, rendererFile, throttleProgress, windowOptions } from './policy.ts';
 
 const here = dirname(fileURLToPath(import.meta.url));
@@ -29,6 +30,8 @@ let window: BrowserWindow | null = null;
 const calls = new Map<string, AbortController>();
 // Long methods run on worker threads (dist/job-worker.js beside this bundle), never on this thread.
 const runInWorker = createWorkerRunner();
+// The session's allow-list (main/api/access.ts): files the user picked in a dialog, and the workspace's own folders.
+let access: AccessGrants | null = null;
 
 function send(event: ShellEvent): void {
   window?.webContents.send(IPC_CHANNELS.event, event);
@@ -66,7 +69,7 @@ function wireIpc(workspaceDir: string): void {
     if (id) calls.set(id, controller);
     const progress = throttleProgress((p) => { if (id) send({ kind: 'progress', callId: id, progress: p }); });
     try {
-      return await callApi(method, args, { host: 'electron', workspaceDir, dialogs, runInWorker, signal: controller.signal, onProgress: (p) => progress.push(p) });
+      return await callApi(method, args, { host: 'electron', workspaceDir, dialogs, runInWorker, ...(access ? { access } : {}), signal: controller.signal, onProgress: (p) => progress.push(p) });
     } catch (err) {
       console.error('Fenceline internal fault:', err);
       return { ok: false, error: { kind: 'input', problems: [{ path: '', message: 'Something went wrong inside Fenceline. Please keep the log for a bug report.' }] } };
@@ -88,7 +91,12 @@ function buildMenu(): Menu {
       submenu: [
         {
           label: 'Open study…', accelerator: 'CmdOrCtrl+O',
-          click: async () => { const p = await dialogs.openFile({ purpose: 'study' }); if (p) send({ kind: 'menu', command: `open-study:${p}` }); },
+          click: async () => {
+            const p = await dialogs.openFile({ purpose: 'study' });
+            if (!p) return;
+            if (access) grantPicked(access, p, 'study');
+            send({ kind: 'menu', command: `open-study:${p}` });
+          },
         },
         { label: 'Save study…', accelerator: 'CmdOrCtrl+S', click: () => send({ kind: 'menu', command: 'save-study' }) },
         { type: 'separator' },
@@ -135,6 +143,7 @@ function lockDown(): void {
 async function start(): Promise<void> {
   await app.whenReady();
   const workspaceDir = join(app.getPath('userData'), 'workspace');
+  access = sessionGrants(workspaceDir);
   lockDown();
   wireIpc(workspaceDir);
   Menu.setApplicationMenu(buildMenu());

@@ -80,5 +80,5 @@ export function rendererFile(url: string): string | null {
   return parts.join('/');
 }
 
-// The progress throttle is shared with the job workers (main/api/progress-throttle.ts).
-export { throttleProgress } from '../api/progress-throttle.ts';
+// The progress throttle is shared with the job workers (main/host/progress-throttle.ts).
+export { throttleProgress } from '../host/progress-throttle.ts';

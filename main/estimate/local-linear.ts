@@ -277,6 +277,28 @@ export type SingleCutoff =
   | { applicable: true; variable: number; key: string; cutoff: number; op: Comparator }
   | { applicable: false; reason: string };
 
+/** The cross-check, or why it cannot be computed on these data (never a throw for the data's sake). */
+export type LocalLinearCheck = { ok: true; value: LocalLinearResult } | { ok: false; reason: string };
+
+/**
+ * localLinear for data that may be degenerate (a constant or missing outcome, take-up that never
+ * changes, values near the largest double): a refusal of the inputs, or an estimate that is not a
+ * finite number, becomes a "not estimable" answer with its reason.
+ */
+export function tryLocalLinear(input: LocalLinearInput): LocalLinearCheck {
+  let r: LocalLinearResult;
+  try {
+    r = localLinear(input);
+  } catch (e) {
+    if (e instanceof EstimateInputError) return { ok: false, reason: e.message };
+    throw e;
+  }
+  if (!Number.isFinite(r.estimate) || !Number.isFinite(r.se)) {
+    return { ok: false, reason: 'The local-linear cross-check has no finite estimate on these data (the outcome or take-up does not vary near the cut-off, or its values are too large to add up).' };
+  }
+  return { ok: true, value: r };
+}
+
 /**
  * Whether the program is one running variable with one deterministic cut-off (`value op limit`
  * with a fixed number as the limit, offer 1/0), the case where the local-linear cross-check applies.

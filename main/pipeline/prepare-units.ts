@@ -2,9 +2,9 @@
 // where the rule cannot be evaluated excluded with a reason naming the criterion, the
 // instrument Z, and the fidelity of the recorded decisions to the formula. Pure.
 
-import type { ExclusionReason, Fidelity } from '../contract/results.ts';
+import type { ExclusionReason, Fidelity, Warning } from '../contract/results.ts';
 import type { MappedData } from '../data/map-columns.ts';
-import type { CompiledProgram, DesignColumns } from '../rules/ir.ts';
+import type { CompiledProgram, DesignColumns, IrNode } from '../rules/ir.ts';
 import { evalColumn } from '../rules/evaluate-columns.ts';
 import { verdicts } from '../rules/atoms.ts';
 
@@ -19,6 +19,8 @@ export interface PreparedUnits {
   eligible: Uint8Array;
   offerProbability: Float64Array;
   excludedByRule: ExclusionReason[];
+  /** One per gap in a limit table (a value with no entry and no 'any other value'): the rows it excludes, named. */
+  warnings: Warning[];
   fidelity: Fidelity | null;
   instrument: { source: 'formula' | 'recorded-decision'; note: string };
 }
@@ -58,6 +60,73 @@ export function keepUnits(data: MappedData, keep: Uint8Array): MappedData {
   };
 }
 
+type LookupNode = Extract<IrNode, { k: 'lookup' }>;
+
+/** The limit tables of a margin that have no "any other value" (only these can leave a unit without a limit). */
+function tablesWithoutElse(node: IrNode, out: LookupNode[] = []): LookupNode[] {
+  switch (node.k) {
+    case 'const': case 'cont': case 'disc': return out;
+    case 'neg': return tablesWithoutElse(node.a, out);
+    case 'add': case 'sub': case 'mul': case 'div': tablesWithoutElse(node.a, out); return tablesWithoutElse(node.b, out);
+    case 'min': case 'max': for (const a of node.args) tablesWithoutElse(a, out); return out;
+    case 'lookup':
+      if (node.otherwise === null) out.push(node);
+      else tablesWithoutElse(node.otherwise, out);
+      for (const b of node.table.values()) tablesWithoutElse(b, out);
+      return out;
+  }
+}
+
+function discreteValueText(program: CompiledProgram, data: MappedData, variableOrder: string[], by: number, code: number): string {
+  const v = program.discrete[by]!;
+  const labels = data.dictionaries[variableOrder.indexOf(v.key)];
+  return labels && Number.isInteger(code) && labels[code] !== undefined ? `"${labels[code]}"` : String(code);
+}
+
+function discreteLabel(program: CompiledProgram, by: number): string {
+  const v = program.discrete[by]!.variable;
+  return (v.label || v.key).replace(/^./, (c) => c.toLowerCase());
+}
+
+const rowsWord = (n: number) => `${n.toLocaleString('en-US')} row${n === 1 ? '' : 's'}`;
+
+/**
+ * Why a criterion cannot be evaluated for the units in `rows`, grouped: each missing table entry
+ * by the value that has none (so the analyst can add it), and apart from them the units whose
+ * limit exists but whose arithmetic fails (a division by zero, a result too large to hold).
+ */
+function unevaluableGroups(program: CompiledProgram, margin: IrNode, data: MappedData, cols: DesignColumns, variableOrder: string[],
+  criterion: string, rows: number[]): { excluded: ExclusionReason[]; warnings: Warning[] } {
+  const tables = tablesWithoutElse(margin);
+  const gaps = new Map<string, { by: number; code: number; count: number; rows: number[] }>();
+  const arithmetic: number[] = [];
+  for (const r of rows) {
+    const table = tables.find((t) => !t.table.has(cols.discrete[t.by]![r]!) && !Number.isNaN(cols.discrete[t.by]![r]!));
+    if (!table) { arithmetic.push(r); continue; }
+    const code = cols.discrete[table.by]![r]!;
+    const key = `${table.by}:${code}`;
+    const g = gaps.get(key) ?? { by: table.by, code, count: 0, rows: [] };
+    g.count++;
+    if (g.rows.length < MAX_LISTED) g.rows.push(data.rowNumbers[r]!);
+    gaps.set(key, g);
+  }
+  const excluded: ExclusionReason[] = [];
+  const warnings: Warning[] = [];
+  for (const g of [...gaps.values()].sort((a, b) => a.by - b.by || a.code - b.code)) {
+    const what = `the limit of "${criterion}" has no entry for ${discreteLabel(program, g.by)} ${discreteValueText(program, data, variableOrder, g.by, g.code)}`;
+    excluded.push({ reason: what, count: g.count, rows: g.rows });
+    warnings.push({ code: 'limit-table-gap', message: `${what}: ${rowsWord(g.count)} are left out. Add an entry for it, or an 'any other value' limit.` });
+  }
+  if (arithmetic.length) {
+    excluded.push({
+      reason: `the rule cannot be evaluated for "${criterion}": its arithmetic has no finite result for the unit (a division by zero, or a number too large)`,
+      count: arithmetic.length,
+      rows: arithmetic.slice(0, MAX_LISTED).map((r) => data.rowNumbers[r]!),
+    });
+  }
+  return { excluded, warnings };
+}
+
 function isDeterministic(program: CompiledProgram): boolean {
   const { ifEligible, ifIneligible } = program.offer;
   return (ifEligible === 0 || ifEligible === 1) && (ifIneligible === 0 || ifIneligible === 1);
@@ -68,18 +137,20 @@ export function prepareUnits(program: CompiledProgram, mapped: MappedData, varia
   let cols = designColumns(program, mapped, variableOrder);
   const keep = new Uint8Array(mapped.n).fill(1);
   const excludedByRule: ExclusionReason[] = [];
+  const warnings: Warning[] = [];
   for (const atom of program.atoms) {
     if (atom.kind !== 'compare') continue;
     const m = evalColumn(atom.margin, cols);
     const rows: number[] = [];
-    let count = 0;
     for (let r = 0; r < mapped.n; r++) {
       if (Number.isFinite(m[r]!) || !keep[r]) continue;
       keep[r] = 0;
-      count++;
-      if (rows.length < MAX_LISTED) rows.push(mapped.rowNumbers[r]!);
+      rows.push(r);
     }
-    if (count) excludedByRule.push({ reason: `the rule cannot be evaluated for "${describe(atom.index)}" (no limit for the unit's value, or a division by zero)`, count, rows });
+    if (!rows.length) continue;
+    const groups = unevaluableGroups(program, atom.margin, mapped, cols, variableOrder, describe(atom.index), rows);
+    excludedByRule.push(...groups.excluded);
+    warnings.push(...groups.warnings);
   }
   const data = excludedByRule.length ? keepUnits(mapped, keep) : mapped;
   if (data !== mapped) cols = designColumns(program, data, variableOrder);
@@ -122,5 +193,5 @@ export function prepareUnits(program: CompiledProgram, mapped: MappedData, varia
         : 'With a lottery, a recorded decision disagrees only where the formula makes an offer impossible (probability 0) or certain (probability 1).',
     };
   }
-  return { data, cols, z, eligible: v.eligible, offerProbability: v.offerProbability, excludedByRule, fidelity, instrument };
+  return { data, cols, z, eligible: v.eligible, offerProbability: v.offerProbability, excludedByRule, warnings, fidelity, instrument };
 }

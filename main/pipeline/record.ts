@@ -15,11 +15,11 @@ import type { Study } from '../contract/study.ts';
 import type { RawTable } from '../data/types.ts';
 import { Cancelled } from '../design/propensity.ts';
 import { unitsCsv } from '../output/units-csv.ts';
-import { writeFilesAtomically, type OutputFile } from '../output/write-files.ts';
+import { writeOutputFiles, type OutputFile } from '../output/write-files.ts';
 import { figureData } from '../report/figure-data.ts';
 import { memoFiles } from '../report/memo-files.ts';
 import type { RunView } from '../report/run-view.ts';
-import type { Checked } from '../rules/types.ts';
+import type { Checked, Problem } from '../rules/types.ts';
 import { SOFTWARE_VERSION } from '../store/software-version.ts';
 import type { DatasetColumnInput, Workspace } from '../store/types.ts';
 import { openWorkspace } from '../store/workspace.ts';
@@ -34,6 +34,8 @@ export interface WriteRunOptions {
   startedAt: string;
   onProgress?: (p: ProgressEvent) => void;
   signal?: AbortSignal;
+  /** Last check of the files' names before anything is written (e.g. that no input would be replaced). */
+  beforeWrite?: (names: string[]) => Problem[];
 }
 
 export interface WrittenRun { files: string[]; runId: number | null }
@@ -75,7 +77,7 @@ function studyVersion(ws: Workspace, study: Study): Checked<{ studyId: number; v
 }
 
 /** Steps 2–4 above; `writeFiles` is step 3. */
-function recordAround(ws: Workspace, study: Study, studySha256: string, run: StudyRun, outDir: string, startedAt: string, writeFiles: () => string[]): Checked<WrittenRun> {
+function recordAround(ws: Workspace, study: Study, studySha256: string, run: StudyRun, outDir: string, startedAt: string, writeFiles: () => Checked<string[]>): Checked<WrittenRun> {
   const saved = studyVersion(ws, study);
   if (!saved.ok) return saved;
   const datasets = ws.listDatasets();
@@ -110,23 +112,29 @@ function recordAround(ws: Workspace, study: Study, studySha256: string, run: Stu
     units: runUnitColumns(run),
   });
   if (!begun.ok) return begun;
-  let files: string[];
+  let files: Checked<string[]>;
   try {
     files = writeFiles();
   } catch (e) {
     ws.discardUnfinishedRun(begun.value);
     throw e;
   }
-  const finished = ws.finishRun(begun.value, files);
+  if (!files.ok) { ws.discardUnfinishedRun(begun.value); return files; }
+  const finished = ws.finishRun(begun.value, files.value);
   if (!finished.ok) return finished;
-  return { ok: true, value: { files, runId: begun.value } };
+  return { ok: true, value: { files: files.value, runId: begun.value } };
 }
 
 /** Render, record and write one run (see the order at the top). */
 export async function writeRun(study: Study, studySha256: string, run: StudyRun, opts: WriteRunOptions): Promise<Checked<WrittenRun>> {
   const files = await runFiles(run, run.units, opts);
-  const writeFiles = () => writeFilesAtomically(opts.outDir, files);
-  if (!opts.workspacePath) return { ok: true, value: { files: writeFiles(), runId: null } };
+  const clash = opts.beforeWrite?.(files.map((f) => f.name)) ?? [];
+  if (clash.length) return { ok: false, problems: clash };
+  const writeFiles = () => writeOutputFiles(opts.outDir, files);
+  if (!opts.workspacePath) {
+    const written = writeFiles();
+    return written.ok ? { ok: true, value: { files: written.value, runId: null } } : written;
+  }
   const opened = openWorkspace(opts.workspacePath);
   if (!opened.ok) return opened;
   try {
@@ -149,8 +157,8 @@ export function openStoredRun(ws: Workspace, runId: number): Checked<{ view: Run
 }
 
 /** Write a stored run's memo files again, into another folder (nothing is run again, no run is recorded). */
-export async function exportStoredMemo(view: RunView, outDir: string, opts: Pick<WriteRunOptions, 'formats' | 'startedAt' | 'onProgress' | 'signal'>): Promise<string[]> {
+export async function exportStoredMemo(view: RunView, outDir: string, opts: Pick<WriteRunOptions, 'formats' | 'startedAt' | 'onProgress' | 'signal'>): Promise<Checked<string[]>> {
   const files = await memoFiles(view.results, figureData(view), opts.formats, memoOptions(opts));
   if (opts.signal?.aborted) throw new Cancelled();
-  return writeFilesAtomically(outDir, files);
+  return writeOutputFiles(outDir, files);
 }

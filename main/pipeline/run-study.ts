@@ -18,7 +18,7 @@ import { balanceChecks } from '../estimate/balance.ts';
 import { complierProfiles } from '../estimate/compliers.ts';
 import { boundaryComposition, describeAtom } from '../estimate/composition.ts';
 import { densityChecksForProgram } from '../estimate/density.ts';
-import { localLinear, singleCutoff } from '../estimate/local-linear.ts';
+import { singleCutoff, tryLocalLinear } from '../estimate/local-linear.ts';
 import { headlineDeltaIndex } from '../estimate/headline.ts';
 import { holmByDelta } from '../estimate/multiplicity.ts';
 import { deltaSensitivity } from '../estimate/sensitivity.ts';
@@ -77,6 +77,8 @@ export function columnSpec(study: Study): ColumnSpec {
     ...(c.cluster ? { cluster: { column: c.cluster, path: 'columns.cluster' } } : {}),
     covariates: (c.covariates ?? []).map((column, i) => ({ column, path: `columns.covariates[${i}]` })),
     controls: (c.controls ?? []).map((column, i) => ({ column, path: `columns.controls[${i}]` })),
+    ...(study.data.decimal ? { decimal: study.data.decimal } : {}),
+    ...(study.data.dateColumns ? { dateColumns: study.data.dateColumns } : {}),
   };
 }
 
@@ -182,7 +184,7 @@ export async function runStudy(study: Study, options: RunOptions): Promise<Check
   stopIfCancelled();
   options.onProgress?.({ stage: 'estimate', done: 0, total: 1 });
   stopIfCancelled();
-  const warnings: Warning[] = [];
+  const warnings: Warning[] = [...prepared.warnings];
   const clusters = data.cluster ? data.cluster.codes : undefined;
   const offer: NamedColumn = { name: study.columns.decision && prepared.instrument.source === 'recorded-decision' ? study.columns.decision : 'offer (formula)', values: z };
   // a "listed in" treatment is named by the file's name only (a saved study may hold an absolute path)
@@ -233,7 +235,7 @@ export async function runStudy(study: Study, options: RunOptions): Promise<Check
     warnings.push(...sensitivity.warnings);
     let local = null;
     if (cutoff.applicable) {
-      local = localLinear({
+      const check = tryLocalLinear({
         running: cols.continuous[cutoff.variable]!,
         cutoff: cutoff.cutoff,
         outcome: data.outcomes[i]!,
@@ -241,7 +243,8 @@ export async function runStudy(study: Study, options: RunOptions): Promise<Check
         ...(data.treatment ? { treatment: data.treatment } : {}),
         ...(clusters ? { clusters } : {}),
       });
-      warnings.push(...local.warnings);
+      if (check.ok) { local = check.value; warnings.push(...local.warnings); }
+      else warnings.push({ code: 'local-linear-not-estimable', message: `Outcome "${o.label}": ${check.reason}` });
     }
     return { ...o, sensitivity, localLinear: local };
   });

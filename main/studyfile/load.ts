@@ -36,7 +36,10 @@ export function parseJsonText(textValue: string, fileLabel: string): Checked<unk
     const message = (e as Error).message;
     const m = /position (\d+)/.exec(message);
     const where = m ? (() => { const lc = lineColumn(clean, Number(m[1])); return ` at line ${lc.line}, column ${lc.column}`; })() : '';
-    const detail = message.replace(/^JSON\.parse: /, '').replace(/ in JSON at position \d+.*$/, '').replace(/ at position \d+.*$/, '');
+    // Never quote the text itself (V8 puts the start of it in "Unexpected token" messages): the
+    // file may not be a study at all, and its content is not the page's to see.
+    const detail = /^Unexpected token/.test(message) ? 'an unexpected character'
+      : message.replace(/^JSON\.parse: /, '').replace(/ in JSON at position \d+.*$/, '').replace(/ at position \d+.*$/, '').replace(/"[^]*$/, '').trim() || 'a syntax error';
     return { ok: false, problems: [{ path: fileLabel, message: `${fileLabel} is not valid JSON${where} (${detail}). Check for a missing comma, quote or brace there.` }] };
   }
 }

@@ -11,7 +11,7 @@ import { validateProgram } from '../rules/validate.ts';
 export const STUDY_FORMAT_VERSION = 1;
 
 const STUDY_FIELDS = ['fenceline', 'title', 'description', 'program', 'data', 'columns', 'settings'];
-const DATA_FIELDS = ['path', 'fileName', 'sheet', 'headerRow', 'join'];
+const DATA_FIELDS = ['path', 'fileName', 'sheet', 'headerRow', 'join', 'decimal', 'dateColumns'];
 const JOIN_FIELDS = ['path', 'fileName', 'sheet', 'key', 'headerRow'];
 const COLUMN_FIELDS = ['id', 'outcomes', 'treatment', 'treatmentPer', 'decision', 'cluster', 'covariates', 'controls'];
 const OUTCOME_FIELDS = ['column', 'label'];
@@ -104,8 +104,20 @@ function validateData(ps: Problems, v: unknown): StudyData | undefined {
       });
     }
   }
+  // The decimal mark of numbers written as text: "," reads "1.234,5" as 1234.5 and "1.234" as 1234 in every column.
+  let decimal: ',' | '.' | undefined;
+  if (hasOwn(o, 'decimal') && getOwn(o, 'decimal') !== undefined) {
+    const d = getOwn(o, 'decimal');
+    if (d === ',' || d === '.') decimal = d;
+    else ps.add('data.decimal', `data.decimal is the decimal mark of the numbers in the data: "," (as in 1.234,5) or "." (as in 1,234.5); found ${describeGiven(d)}.`);
+  }
+  // Columns that hold dates on purpose: a continuous rule input may be a date only when its column is listed here.
+  const dateColumns = textList(ps, o, 'dateColumns', 'data', 'data.dateColumns');
   if (!path) return undefined;
-  return { path, ...(fileName ? { fileName } : {}), ...(sheet ? { sheet } : {}), ...(headerRow ? { headerRow } : {}), ...(join ? { join } : {}) };
+  return {
+    path, ...(fileName ? { fileName } : {}), ...(sheet ? { sheet } : {}), ...(headerRow ? { headerRow } : {}), ...(join ? { join } : {}),
+    ...(decimal ? { decimal } : {}), ...(dateColumns?.length ? { dateColumns } : {}),
+  };
 }
 
 function validateColumns(ps: Problems, v: unknown, data: StudyData | undefined): StudyColumns | undefined {

@@ -10,12 +10,12 @@
 // without a worker runner), unless BENCH_RESPONSIVENESS_BASELINE=0.
 // Prints figures and ratios; asserts nothing. BENCH_QUICK=1 (BENCH_UNITS) scales down.
 
-import { mkdtempSync, rmSync, statSync } from 'node:fs';
+import { mkdirSync, mkdtempSync, rmSync, statSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { monitorEventLoopDelay, performance } from 'node:perf_hooks';
 import { callApi } from '../../main/api.ts';
-import { JobTable } from '../../main/api/jobs.ts';
+import { JobTable } from '../../main/host/jobs.ts';
 import type { ApiResult, ProgressEvent } from '../../main/contract/api.ts';
 import { startServer } from '../../main/serve.ts';
 import { writeSingleFileStudy } from '../serve/single-file-study.ts';
@@ -73,13 +73,19 @@ function report(label: string, m: Measured): void {
 const dir = mkdtempSync(join(tmpdir(), 'fenceline-responsiveness-bench-'));
 try {
   let t = performance.now();
-  const studyPath = writeSingleFileStudy(dir, ROWS);
-  console.log(`Responsiveness benchmark: ${ROWS.toLocaleString('en-US')} households (CSV ${(statSync(join(dir, 'applicants.csv')).size / 2 ** 20).toFixed(1)} MB, written in ${((performance.now() - t) / 1000).toFixed(1)} s), deltas 0.05, 0.1, 0.2, draws 4000, saved in the workspace`);
+  // Inside the browser-mode workspace: the page may name only what the session allows (main/api/access.ts).
+  const ws = join(dir, 'ws-browser');
+  const studyDir = join(ws, 'studies', 'bench');
+  mkdirSync(studyDir, { recursive: true });
+  const studyPath = writeSingleFileStudy(studyDir, ROWS);
+  console.log(`Responsiveness benchmark: ${ROWS.toLocaleString('en-US')} households (CSV ${(statSync(join(studyDir, 'applicants.csv')).size / 2 ** 20).toFixed(1)} MB, written in ${((performance.now() - t) / 1000).toFixed(1)} s), deltas 0.05, 0.1, 0.2, draws 4000, saved in the workspace`);
 
-  const srv = await startServer({ port: 0, rendererDir: join(dir, 'renderer'), workspaceDir: join(dir, 'ws-browser') });
+  const srv = await startServer({ port: 0, rendererDir: join(dir, 'renderer'), workspaceDir: ws });
   const post = async (path: string, body: unknown) =>
     (await fetch(`http://127.0.0.1:${srv.port}${path}`, { method: 'POST', headers: { 'Content-Type': 'application/json', 'X-Fenceline-Token': srv.token }, body: JSON.stringify(body) })).json();
-  const args = (name: string) => ({ studyPath, outDir: join(dir, `out-${name}`), formats: [], workspacePath: join(dir, `ws-${name}.fenceline`) });
+  const args = (name: string) => name === 'worker'
+    ? { studyPath, outDir: join(ws, 'runs', `out-${name}`), formats: [], workspacePath: join(ws, 'workspace.fenceline') }
+    : { studyPath, outDir: join(dir, `out-${name}`), formats: [], workspacePath: join(dir, `ws-${name}.fenceline`) };
   let worker: Measured;
   try {
     worker = await measure(

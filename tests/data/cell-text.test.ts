@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { formattedNumber, isoDateToDays, newParsedCell, parseCellText } from '../../main/data/cell-text.ts';
-import { CellKind } from '../../main/data/types.ts';
+import { decimalCommaColumn, decimalCommaNumber, formattedNumber, isoDateToDays, newParsedCell, parseCellText } from '../../main/data/cell-text.ts';
+import { CellKind, type RawColumn } from '../../main/data/types.ts';
 
 const parse = (text: string) => ({ ...parseCellText(text, newParsedCell()) });
 
@@ -43,10 +43,21 @@ describe('text that is a number', () => {
     expect(parse('1,234,567')).toMatchObject({ kind: CellKind.TextNumber, value: 1234567 });
   });
 
-  it('does not guess at ambiguous or malformed numbers', () => {
-    expect(parse('1,23')).toMatchObject({ kind: CellKind.Text }); // not a thousands group
-    expect(parse('1.234,50')).toMatchObject({ kind: CellKind.Text }); // European decimal comma
-    expect(parse('12%')).toMatchObject({ kind: CellKind.Text });
+  it('reads a decimal comma where it cannot be a thousands comma, and percentages as their number', () => {
+    expect(parse('1,23')).toMatchObject({ kind: CellKind.TextNumber, value: 1.23, keepText: true }); // not a thousands group
+    expect(parse('1.234,50')).toMatchObject({ kind: CellKind.TextNumber, value: 1234.5 }); // European decimal comma
+    expect(parse('-0,5')).toMatchObject({ kind: CellKind.TextNumber, value: -0.5 });
+    expect(parse('12%')).toMatchObject({ kind: CellKind.TextNumber, value: 12, keepText: true });
+    expect(parse('12,5 %')).toMatchObject({ kind: CellKind.TextNumber, value: 12.5 });
+    // Ambiguous forms keep their first reading, and their text so a decimal-comma column can read them again.
+    expect(parse('1.234')).toMatchObject({ kind: CellKind.Number, value: 1.234, keepText: true });
+    expect(parse('1,234')).toMatchObject({ kind: CellKind.TextNumber, value: 1234, keepText: true });
+  });
+
+  it('does not guess at malformed numbers', () => {
+    expect(parse('1,2,3')).toMatchObject({ kind: CellKind.Text });
+    expect(parse('1.23.4')).toMatchObject({ kind: CellKind.Text });
+    expect(parse('12%%')).toMatchObject({ kind: CellKind.Text });
     expect(parse('(-12)')).toMatchObject({ kind: CellKind.Text });
     expect(parse('A-0102')).toMatchObject({ kind: CellKind.Text, keepText: true });
     expect(formattedNumber('$')).toBeNaN();
@@ -83,5 +94,33 @@ describe('ISO 8601 dates as days since 1970-01-01', () => {
     expect(isoDateToDays('2023-02-29')).toBeNaN();
     expect(isoDateToDays('2024-13-01')).toBeNaN();
     expect(parse('2023-02-30')).toMatchObject({ kind: CellKind.Text });
+  });
+});
+
+describe('a column written with decimal commas (decimalCommaColumn)', () => {
+  const column = (cells: string[]): RawColumn => {
+    const kinds = new Uint8Array(cells.length), numbers = new Float64Array(cells.length);
+    const texts: Array<string | undefined> = [];
+    cells.forEach((c, r) => { const p = parse(c); kinds[r] = p.kind; numbers[r] = p.value; texts.push(p.keepText ? c : undefined); });
+    return { name: 'X', letter: 'A', kinds, numbers, texts } as unknown as RawColumn;
+  };
+  it('reads the ambiguous cells with the comma once the column shows it uses one', () => {
+    const c = column(['1.234,5', '987,25', '1.234', '12', '2.000.000']);
+    expect(decimalCommaColumn(c, false)).toMatchObject({ written: 2, example: '1.234,5' });
+    expect(Array.from(c.numbers)).toEqual([1234.5, 987.25, 1234, 12, 2000000]);
+  });
+  it('leaves a column that also has a decimal point as it was', () => {
+    const c = column(['1,5', '2.75', '1.234']);
+    expect(decimalCommaColumn(c, false)).toBeNull();
+    expect(Array.from(c.numbers)).toEqual([1.5, 2.75, 1.234]);
+    // unless the study says the decimal mark is a comma
+    const forced = column(['1.234', '1,234', '5']);
+    expect(decimalCommaColumn(forced, true)).toMatchObject({ changed: 2 });
+    expect(Array.from(forced.numbers)).toEqual([1234, 1.234, 5]);
+  });
+  it('reads numbers with space groups and percent signs', () => {
+    expect(decimalCommaNumber('1 234,5')).toBe(1234.5);
+    expect(decimalCommaNumber('\u2212 3,25 %')).toBe(-3.25);
+    expect(decimalCommaNumber('1.23.4')).toBeNaN();
   });
 });

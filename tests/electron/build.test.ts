@@ -12,7 +12,7 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import config from '../../electron.config.ts';
 import { buildElectron } from '../../scripts/build-electron.mjs';
 import { callApi } from '../../main/api.ts';
-import { createWorkerRunner } from '../../main/api/worker-runner.ts';
+import { createWorkerRunner } from '../../main/host/worker-runner.ts';
 import type { EvaluateReport } from '../../main/contract/api.ts';
 
 const dist = join(import.meta.dirname, '..', '..', config.outDir);
@@ -25,6 +25,14 @@ describe('the bundles', () => {
     const outs = config.entries.filter((e) => e.target !== 'renderer').map((e) => e.out);
     expect(outs).toEqual(expect.arrayContaining(['main.js', 'preload.js', 'worker.js', 'job-worker.js']));
     for (const out of outs) expect(existsSync(join(dist, out)), out).toBe(true);
+  });
+
+  it('ship no source maps (they would hand out the sources)', () => {
+    const outs = config.entries.filter((e) => e.target !== 'renderer').map((e) => e.out);
+    for (const out of outs) {
+      expect(existsSync(join(dist, `${out}.map`)), out).toBe(false);
+      expect(read(out), out).not.toMatch(/sourceMappingURL/);
+    }
   });
 
   it('the preload is CommonJS and requires nothing but electron (a sandboxed preload can load nothing else)', () => {

@@ -1,16 +1,16 @@
-// Long api calls on worker threads (main/api/worker-runner.ts, job-worker.ts): the answer is the
+// Long api calls on worker threads (main/host/worker-runner.ts, job-worker.ts): the answer is the
 // same as in-process, progress comes back at most 10 a second, cancelling stops the work (by
 // message, or by terminating a thread that does not listen), an input problem comes back as a
 // problem and an internal fault as a plain message. The propensity pool starts its own workers
 // inside the job worker (workers: 2), so nesting is exercised too.
 
-import { mkdtempSync, writeFileSync } from 'node:fs';
+import { mkdirSync, mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { callApi } from '../../main/api.ts';
-import { JobTable } from '../../main/api/jobs.ts';
-import { createWorkerRunner, WORKER_METHODS, type WorkerRunner } from '../../main/api/worker-runner.ts';
+import { JobTable } from '../../main/host/jobs.ts';
+import { createWorkerRunner, WORKER_METHODS, type WorkerRunner } from '../../main/host/worker-runner.ts';
 import type { ApiResult, EvaluateReport, ProgressEvent } from '../../main/contract/api.ts';
 import { startServer } from '../../main/serve.ts';
 import { SAMPLE_DIR } from '../app/helpers.ts';
@@ -92,15 +92,20 @@ describe('a job on a worker thread', () => {
     expect(r).toMatchObject({ ok: false, error: { kind: 'input', problems: [{ message: expect.stringMatching(/no-such-study\.json was not found/) }] } });
   });
 
-  it('turns an internal fault into a plain message (the details go to the log)', async () => {
+  it('a folder that cannot take the outputs is an input problem, answered from the worker', async () => {
     const blocker = join(scratch(), 'a-file');
     writeFileSync(blocker, 'not a folder');
-    // results cannot be written inside a regular file: the file system throws, which is a fault, not an input problem
-    const args = { studyPath, outDir: join(blocker, 'out'), formats: [] };
-    await expect(callApi('study.evaluate', args, { runInWorker })).rejects.toThrow(/ENOTDIR|not a directory/);
+    const r = await callApi('study.evaluate', { studyPath, outDir: join(blocker, 'out'), formats: [] }, { runInWorker });
+    expect(r).toMatchObject({ ok: false, error: { kind: 'input', problems: [{ path: 'outDir', message: expect.stringMatching(/is a file, not a folder/) }] } });
+  });
+
+  it('turns an internal fault into a plain message (the details go to the log)', async () => {
+    const faulty = createWorkerRunner({ workerUrl: new URL('./fixtures/faulty-job-worker.mjs', import.meta.url) });
+    const args = { studyPath, outDir: join(scratch(), 'out'), formats: [] };
+    await expect(callApi('study.evaluate', args, { runInWorker: faulty })).rejects.toThrow(/a bug inside the estimation/);
     const logged: unknown[] = [];
     const plain: ApiResult<unknown> = { ok: false, error: { kind: 'input', problems: [{ path: '', message: 'Something went wrong inside Fenceline.' }] } };
-    const jobs = new JobTable(callApi, { runInWorker }, (e) => { logged.push(e); return plain; });
+    const jobs = new JobTable(callApi, { runInWorker: faulty }, (e) => { logged.push(e); return plain; });
     const id = jobs.start('study.evaluate', args);
     let view = jobs.view(id);
     while (view?.state === 'running') { await new Promise((r) => setTimeout(r, 50)); view = jobs.view(id); }
@@ -113,9 +118,13 @@ describe('browser mode runs jobs on worker threads', () => {
   it('a job started over HTTP is answered, the server answering polls while it runs', async () => {
     const dir = scratch();
     const srv = await startServer({ port: 0, rendererDir: join(dir, 'renderer'), workspaceDir: join(dir, 'ws') });
+    // The page may name only what the session allows: a study in the workspace's studies folder.
+    const inWorkspace = join(dir, 'ws', 'studies', 'one');
+    mkdirSync(inWorkspace, { recursive: true });
+    const allowedStudy = writeSingleFileStudy(inWorkspace, 20_000);
     try {
       const post = async (path: string, body: unknown) => (await fetch(`http://127.0.0.1:${srv.port}${path}`, { method: 'POST', headers: { 'X-Fenceline-Token': srv.token }, body: JSON.stringify(body) })).json();
-      const { jobId } = await post('/api/jobs', { method: 'study.check', args: { studyPath } }) as { jobId: string };
+      const { jobId } = await post('/api/jobs', { method: 'study.check', args: { studyPath: allowedStudy } }) as { jobId: string };
       let polls = 0;
       let view: { state: string; result?: ApiResult<{ rowsUsed: number }> } = { state: 'running' };
       while (view.state === 'running') { view = await post(`/api/jobs/${jobId}`, {}) as typeof view; polls++; await new Promise((r) => setTimeout(r, 20)); }

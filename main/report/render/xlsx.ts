@@ -12,6 +12,7 @@ import {
 } from '../model/format.ts';
 import type { RenderOptions } from './options.ts';
 import { setZipEntryDates } from './zip-dates.ts';
+import { neutralizeText } from '../../output/cell-safety.ts';
 
 /** Excel refuses sheet names over 31 characters or with any of : \ / ? * [ ] (ECMA-376 Part 1, §18.2.19). */
 export function sheetNameFor(wanted: string, taken: Set<string>): string {
@@ -128,6 +129,8 @@ export async function renderXlsx(doc: Document, _opts: RenderOptions = {}): Prom
 
   for (const { t, name, label } of list) tableSheet(wb, doc, t, name, label, fnText);
 
+  // Text that a spreadsheet would take for a formula is written as text (OWASP, "CSV Injection").
+  wb.eachSheet((ws) => ws.eachRow((row) => row.eachCell((cell) => { if (typeof cell.value === 'string') cell.value = neutralizeText(cell.value); })));
   const out = Buffer.from(await wb.xlsx.writeBuffer());
   return setZipEntryDates(out, tb.createdAt);
 }

@@ -6,7 +6,7 @@
 
 import { randomBytes } from 'node:crypto';
 import type { ApiResult, ProgressEvent } from '../contract/api.ts';
-import type { HostContext } from './host.ts';
+import type { HostContext } from '../api/host.ts';
 import { throttleProgress } from './progress-throttle.ts';
 
 export type CallFn = (method: unknown, args: unknown, ctx: HostContext) => Promise<ApiResult<unknown>>;

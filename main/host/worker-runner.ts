@@ -6,23 +6,33 @@
 // AbortController, and terminates the thread if it has not answered within a grace period.
 
 import { existsSync } from 'node:fs';
+import { availableParallelism } from 'node:os';
 import { fileURLToPath } from 'node:url';
 import { Worker } from 'node:worker_threads';
 import type { ApiMethod, ApiResult } from '../contract/api.ts';
 import type { FromJobWorker, ToJobWorker, WorkerHost } from './job-messages.ts';
-import type { CallContext } from './context.ts';
+import type { WorkerRunner } from '../api/host.ts';
 
-/** Methods that read a whole data file, open the workspace or estimate: never on the host's main thread. */
-export const WORKER_METHODS: ReadonlySet<ApiMethod> = new Set<ApiMethod>(['study.check', 'study.evaluate', 'demo.run', 'data.preview', 'data.check', 'figure.map', 'figure.edge', 'workspace.run', 'run.exportMemo']);
-
-export type WorkerRunner = (method: ApiMethod, args: unknown, ctx: CallContext & WorkerHost) => Promise<ApiResult<unknown>>;
+export { WORKER_METHODS } from '../api/host.ts';
+export type { WorkerRunner };
 
 export interface WorkerRunnerOptions {
   /** The worker script (default: the built job-worker.js beside this module, else the development entry). */
   workerUrl?: URL;
   /** How long a cancelled call may take to stop by itself before its thread is terminated. */
   cancelGraceMs?: number;
+  /** Job workers running at once (default: the cores less one for the host, at least 1). */
+  maxRunning?: number;
+  /** Calls that may wait for a job worker; one more is answered "busy" at once (default 8). */
+  maxWaiting?: number;
 }
+
+/** The cores less one (the host's own thread keeps answering), at least one. */
+export const defaultJobWorkers = () => Math.max(1, availableParallelism() - 1);
+export const DEFAULT_MAX_WAITING = 8;
+
+export const busyMessage = (waiting: number) =>
+  `Fenceline is busy — ${waiting} call${waiting === 1 ? ' is' : 's are'} waiting; try again when the current run finishes.`;
 
 /** An internal fault inside a worker, rethrown on the host with the worker's stack for the log. */
 export class WorkerFault extends Error {
@@ -40,7 +50,43 @@ export function jobWorkerUrl(): URL {
   return existsSync(fileURLToPath(built)) ? built : new URL('./job-worker-entry.mjs', import.meta.url);
 }
 
+/**
+ * One queue for every long call of a host: at most `maxRunning` job workers at once (each may
+ * start propensity workers of its own), at most `maxWaiting` calls waiting in order; beyond that a
+ * call is answered "busy" at once instead of starting threads without bound.
+ */
 export function createWorkerRunner(options: WorkerRunnerOptions = {}): WorkerRunner {
+  const maxRunning = Math.max(1, options.maxRunning ?? defaultJobWorkers());
+  const maxWaiting = Math.max(0, options.maxWaiting ?? DEFAULT_MAX_WAITING);
+  const runOne = singleRunner(options);
+  let running = 0;
+  const waiting: Array<() => void> = [];
+  const next = () => { running--; waiting.shift()?.(); };
+  return (method, args, ctx) => {
+    if (running < maxRunning) { running++; return runOne(method, args, ctx).finally(next); }
+    if (waiting.length >= maxWaiting) {
+      return Promise.resolve({ ok: false, error: { kind: 'input', problems: [{ path: '', message: busyMessage(waiting.length) }] } });
+    }
+    return new Promise<ApiResult<unknown>>((resolve, reject) => {
+      const start = () => {
+        ctx.signal?.removeEventListener('abort', drop);
+        running++;
+        runOne(method, args, ctx).finally(next).then(resolve, reject);
+      };
+      // A call cancelled while it waits leaves the queue without starting a thread.
+      const drop = () => {
+        const i = waiting.indexOf(start);
+        if (i >= 0) waiting.splice(i, 1);
+        resolve({ ok: false, error: { kind: 'cancelled', problems: [{ path: '', message: CANCELLED_BY_TERMINATE }] } });
+      };
+      waiting.push(start);
+      if (ctx.signal?.aborted) drop();
+      else ctx.signal?.addEventListener('abort', drop, { once: true });
+    });
+  };
+}
+
+function singleRunner(options: WorkerRunnerOptions): WorkerRunner {
   const graceMs = options.cancelGraceMs ?? 5_000;
   return (method, args, ctx) => new Promise<ApiResult<unknown>>((resolve, reject) => {
     const worker = new Worker(options.workerUrl ?? jobWorkerUrl());
@@ -67,7 +113,7 @@ export function createWorkerRunner(options: WorkerRunnerOptions = {}): WorkerRun
     });
     worker.on('error', (e) => finish(() => reject(e)));
     worker.on('exit', (code) => finish(() => reject(new WorkerFault(`the job worker stopped (exit code ${code}) before answering`))));
-    const host: WorkerHost = { ...(ctx.host ? { host: ctx.host } : {}), ...(ctx.workspaceDir ? { workspaceDir: ctx.workspaceDir } : {}) };
+    const host: WorkerHost = { ...(ctx.host ? { host: ctx.host } : {}), ...(ctx.workspaceDir ? { workspaceDir: ctx.workspaceDir } : {}), ...(ctx.access ? { access: ctx.access } : {}) };
     const call: ToJobWorker = { type: 'call', method, args, host };
     worker.postMessage(call);
     if (ctx.signal?.aborted) onAbort();

@@ -1,13 +1,16 @@
-// Messages between the host's main thread and a job worker (main/api/job-worker.ts): plain,
+// Messages between the host's main thread and a job worker (main/host/job-worker.ts): plain,
 // structured-clone-safe data only. The host sends one call and perhaps a cancel; the worker
 // answers with progress events (at most 10 a second), then one answer or one fault.
 
+import type { AccessGrants } from '../api/access.ts';
 import type { ApiResult, AppHost, ProgressEvent } from '../contract/api.ts';
 
 /** The part of the host's context a worker can use (no dialogs, no functions). */
 export interface WorkerHost {
   host?: AppHost;
   workspaceDir?: string;
+  /** A copy of the session's allow-list as it stood when the call began. */
+  access?: AccessGrants;
 }
 
 export interface JobCall { type: 'call'; method: string; args: unknown; host: WorkerHost }
