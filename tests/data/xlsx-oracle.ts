@@ -132,9 +132,13 @@ export async function readXlsxRows(
   try {
     for await (const worksheet of reader) {
       const name = (worksheet as unknown as { name?: unknown }).name;
-      // The reader is run to its end: stopping it early leaves its temporary files to be
-      // removed under a stream still reading them.
-      if (name !== sheetName || found) continue;
+      // Every sheet is read to its end: exceljs removes the temporary copy of a sheet (made when
+      // the sheet comes before the shared strings in the zip) once the loop moves on, and a
+      // sheet left unread would then fail to open it.
+      if (name !== sheetName || found) {
+        for await (const _row of worksheet) { /* drained */ }
+        continue;
+      }
       found = true;
       for await (const row of worksheet) {
         if (builder.failed !== null || opts.signal?.aborted) continue;

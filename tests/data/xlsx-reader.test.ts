@@ -131,6 +131,7 @@ describe('the narrow reader gives the tables the exceljs reader gives', () => {
   it('on random workbooks written by exceljs (numbers, dates, text, rich text, booleans, errors, formulas, sparse rows and columns, title rows, empty and several sheets, 1900 and 1904 dates)', async () => {
     let compared = 0;
     let tables = 0;
+    let oracleFailed = 0;
     await fc.assert(fc.asyncProperty(workbook, async (spec) => {
       const path = await writeWorkbook(spec);
       const twin = await writeWorkbook(spec, true);
@@ -142,6 +143,12 @@ describe('the narrow reader gives the tables the exceljs reader gives', () => {
         for (const headerRow of headerRows) {
           const ours = await tableOf(path, name, 'narrow', headerRow);
           const theirs = await tableOf(twin, name, 'exceljs', headerRow);
+          if ('message' in theirs && /could not be found|could not be read/.test(theirs.message)) {
+            // exceljs's own limits (e.g. it names sheets by part number, so it loses a sheet of
+            // its streaming writer when an earlier one is empty): nothing to compare with.
+            oracleFailed++;
+            continue;
+          }
           expect(ours).toEqual(theirs);
           expect(await tableOf(twin, name, 'narrow', headerRow)).toEqual(theirs);
           compared++;
@@ -151,6 +158,7 @@ describe('the narrow reader gives the tables the exceljs reader gives', () => {
     }), { numRuns: Number(process.env.XLSX_FUZZ_RUNS ?? 40), seed: Number(process.env.XLSX_FUZZ_SEED ?? 1904), endOnFailure: true });
     // The property compared real tables, not only refusals.
     expect(tables).toBeGreaterThan(compared / 3);
+    expect(oracleFailed).toBeLessThan(compared / 5);
   }, 300_000);
 
   it('through readTable: the same table, notes and file facts as before', async () => {
