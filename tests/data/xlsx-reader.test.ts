@@ -17,6 +17,7 @@ import { classifySheetCell, readXlsxRows } from '../../main/data/read-xlsx.ts';
 import { TableBuilder } from '../../main/data/table-builder.ts';
 import { CellKind } from '../../main/data/types.ts';
 import { isDateFormatCode } from '../../main/data/xlsx/styles.ts';
+import { floatAt, intAt } from '../../main/data/xlsx/xml-bytes.ts';
 import { inspectWorkbookZip } from '../../main/data/zip-check.ts';
 import { makeZip, tempDir, uniqueName, writeFile } from './helpers.ts';
 import { classifyXlsxValue, readXlsxRows as readWithExceljs } from './xlsx-oracle.ts';
@@ -47,6 +48,8 @@ const number = fc.oneof(
   fc.integer({ min: -1_000_000, max: 1_000_000 }),
   fc.double({ noNaN: true, noDefaultInfinity: true, min: -1e6, max: 1e6 }),
   fc.constantFrom(1e300, -1e300, 1e-300, 5e-324, 2 ** 53, 0.1, -0.5, 123456789012345.6),
+  // decimals with few digits, as typed into a sheet (the reader's fast path)
+  fc.tuple(fc.integer({ min: -1e9, max: 1e9 }), fc.integer({ min: 1, max: 6 })).map(([m, k]) => m / 10 ** k),
 );
 const DATE_FORMATS = ['yyyy-mm-dd', 'dd/mm/yyyy', 'mm-dd-yy', 'd-mmm-yy', 'yyyy-mm-dd hh:mm:ss', 'h:mm', '[h]:mm:ss', 'mmm yyyy'];
 const OTHER_FORMATS = ['0.00', '#,##0', '0%', '"Days:" 0', '[Red]0.0', '@'];
@@ -214,6 +217,19 @@ async function read(path: string) {
 
 const STYLES = '<numFmts count="1"><numFmt numFmtId="164" formatCode="dd/mm/yyyy;[Red]&quot;neg&quot;"/></numFmts>'
   + '<cellXfs count="4"><xf numFmtId="0"/><xf numFmtId="14" applyNumberFormat="1"/><xf numFmtId="164"/><xf numFmtId="4"/></cellXfs>';
+
+describe('numbers read from the bytes', () => {
+  it('floatAt and intAt give what parseFloat and parseInt give (the reference), -0 included', () => {
+    const digits = fc.string({ unit: fc.constantFrom('0', '1', '2', '3', '4', '5', '6', '7', '8', '9'), minLength: 0, maxLength: 18 });
+    const written = fc.tuple(fc.constantFrom('', '-', '+'), digits, fc.option(digits, { nil: undefined }), fc.constantFrom('', 'e5', 'E-3', ' '))
+      .map(([sign, whole, fraction, tail]) => `${sign}${whole}${fraction === undefined ? '' : `.${fraction}`}${tail}`);
+    fc.assert(fc.property(written, (t) => {
+      const b = Buffer.from(`<v>${t}</v>`, 'latin1');
+      expect(Object.is(floatAt(b, 3, 3 + t.length), Number.parseFloat(t))).toBe(true);
+      expect(Object.is(intAt(b, 3, 3 + t.length), Number.parseInt(t, 10))).toBe(true);
+    }), { numRuns: 5000, seed: 1990 });
+  });
+});
 
 describe('hand-written sheets (ECMA-376 Part 1 §18.3.1)', () => {
   it('rows and cells without r attributes follow the previous ones (§18.3.1.73, §18.3.1.4: r is optional)', async () => {
