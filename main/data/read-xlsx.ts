@@ -20,7 +20,8 @@ import { ZipRefusal, type SheetInfo, type WorkbookInfo, type ZipEntry } from './
 const MS_PER_DAY = 86_400_000;
 const parsed = newParsedCell();
 
-function classifyText(text: string, out: Parameters<Classify>[1], wantText: boolean): void {
+/** A text cell: parsed as people write numbers, dates and booleans (cell-text.ts). */
+export function classifyText(text: string, out: Parameters<Classify>[1], wantText: boolean): void {
   parseCellText(text, parsed);
   out.kind = parsed.kind;
   out.value = parsed.value;

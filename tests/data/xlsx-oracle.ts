@@ -6,21 +6,11 @@
 import { createReadStream } from 'node:fs';
 import ExcelJS from 'exceljs';
 import type { Problem } from '../../main/rules/types.ts';
-import { newParsedCell, parseCellText } from '../../main/data/cell-text.ts';
+import { classifyText } from '../../main/data/read-xlsx.ts';
 import type { Classify, TableBuilder } from '../../main/data/table-builder.ts';
 import { CellKind } from '../../main/data/types.ts';
 
 const MS_PER_DAY = 86_400_000;
-const parsed = newParsedCell();
-
-function classifyText(text: string, out: Parameters<Classify>[1], wantText: boolean): void {
-  parseCellText(text, parsed);
-  out.kind = parsed.kind;
-  out.value = parsed.value;
-  out.raw = text;
-  out.text = parsed.keepText || wantText ? text : undefined;
-}
-
 /** Cell classifier for exceljs cell values (ECMA-376 Part 1 §18.3.1.4 cell types). */
 export const classifyXlsxValue: Classify = (raw, out, wantText) => {
   out.raw = undefined;

@@ -14,8 +14,8 @@
 // are left out; text is decoded once; rows and cells without `r` follow the previous ones; t="d"
 // (an ISO 8601 date, §18.18.11) is read as the date it spells.
 
-import { bytesAre, decodeText, find, floatAt, GT, intAt, leafString, leafText, localStart, LT, nameEnd, newLeafText, newTagScan, scanTag, XmlDamage } from './xml-bytes.ts';
-import { skipSpecial } from './shared-strings.ts';
+import { bytesAre, decodeText, find, floatAt, intAt, leafString, leafText, LT, XmlDamage } from './xml-bytes.ts';
+import { ChunkedXmlReader } from './xml-chunks.ts';
 
 /** What a cell holds once read. */
 export const SheetValue = {
@@ -59,10 +59,7 @@ const T_DATE_ISO = 6;
 
 export type RowSink = (rowNumber: number, cells: readonly SheetCell[]) => void;
 
-export class SheetRowParser {
-  private pending: Buffer | null = null;
-  private readonly tag = newTagScan();
-  private readonly leaf = newLeafText();
+export class SheetRowParser extends ChunkedXmlReader {
   private readonly pool: SheetCell[] = [];
   private readonly view: SheetCell[] = [];
   private rowOpen = false;
@@ -91,126 +88,89 @@ export class SheetRowParser {
     private readonly dateStyles: Uint8Array,
     private readonly date1904: boolean,
     private readonly sink: RowSink,
-  ) {}
+  ) {
+    super();
+  }
 
   /** Last row number seen (for progress). */
   get lastRow(): number {
     return this.rowNumber;
   }
 
-  feed(chunk: Buffer): void {
-    const b = this.pending === null ? chunk : Buffer.concat([this.pending, chunk]);
-    const used = this.parse(b);
-    this.pending = used < b.length ? b.subarray(used) : null;
-  }
-
   /** Throws XmlDamage when the part ended inside a row or never held sheetData. */
   finish(): void {
-    if (this.pending !== null && this.pending.toString('latin1').trim() !== '') throw new XmlDamage('the sheet ends inside a tag');
+    this.checkEnded('the sheet');
     if (this.rowOpen || this.inSheetData || !this.sawSheetData) throw new XmlDamage('the sheet ends early');
   }
 
-  private parse(b: Buffer): number {
-    const n = b.length;
-    const tag = this.tag;
-    let p = 0;
-    while (p < n) {
-      const lt = find(b, LT, p);
-      if (lt < 0) return n;
-      if (lt + 1 >= n) return lt;
-      const c1 = b[lt + 1]!;
-      if (c1 === 47 /* / */) {
-        const gt = find(b, GT, lt + 2);
-        if (gt < 0) return lt;
-        let e = gt;
-        while (e > lt + 2 && (b[e - 1] === 32 || b[e - 1] === 9 || b[e - 1] === 10 || b[e - 1] === 13)) e--;
-        const s = localStart(b, lt + 2, e);
-        const len = e - s;
-        if (len === 1 && b[s] === 99 /* c */) this.endCell();
-        else if (len === 3 && b[s] === 114 && b[s + 1] === 111 && b[s + 2] === 119 /* row */) this.endRow();
-        else if (len === 2 && b[s] === 105 && b[s + 1] === 115 /* is */) this.inInline = false;
-        else if (len === 3 && bytesAre(b, s, e, 'rPh')) this.inPhonetic = Math.max(0, this.inPhonetic - 1);
-        else if (len === 9 && bytesAre(b, s, e, 'sheetData')) {
-          if (this.rowOpen) throw new XmlDamage('sheetData ends inside a row');
-          this.inSheetData = false;
-        }
-        p = gt + 1;
-        continue;
-      }
-      if (c1 === 63 /* ? */ || c1 === 33 /* ! */) {
-        const end = skipSpecial(b, lt);
-        if (end < 0) return lt;
-        p = end;
-        continue;
-      }
-      const ne = nameEnd(b, lt + 1);
-      if (ne < 0) return lt;
-      const s = localStart(b, lt + 1, ne);
-      const len = ne - s;
-      scanTag(b, ne, tag);
-      if (tag.end < 0) return lt;
-      const c0 = b[s]!;
-      if (len === 1 && c0 === 99 /* c */) {
-        if (!this.rowOpen) throw new XmlDamage('a cell outside a row');
-        this.startCell(b);
-        if (tag.selfClosing) this.endCell();
-      } else if (len === 1 && c0 === 118 /* v */) {
-        if (this.cellOpen) {
-          if (tag.selfClosing) {
-            this.readValue(b, 0, 0);
-          } else {
-            const leaf = leafText(b, tag.end, this.leaf);
-            if (leaf.next < 0) return lt;
-            if (leaf.text !== null) {
-              const text = leaf.text;
-              this.hasValue = true;
-              this.valueText = text;
-              this.valueNum = Number.parseFloat(text);
-              this.valueInt = Number.parseInt(text, 10);
-            } else {
-              this.readValue(b, leaf.start, leaf.end);
-            }
-            p = leaf.next;
-            continue;
-          }
-        }
-      } else if (len === 3 && c0 === 114 && b[s + 1] === 111 && b[s + 2] === 119 /* row */) {
-        if (this.rowOpen) throw new XmlDamage('a row inside a row');
-        this.startRow(b);
-        if (tag.selfClosing) this.endRow();
-      } else if (len === 1 && c0 === 102 /* f */) {
-        if (this.cellOpen) this.hasFormula = true;
-        if (!tag.selfClosing) {
-          // Skip the formula text (markup-free).
-          const close = find(b, LT, tag.end + 1);
-          if (close < 0) return lt;
-          p = close;
-          continue;
-        }
-      } else if (len === 2 && c0 === 105 && b[s + 1] === 115 /* is */) {
-        if (this.cellOpen) {
-          this.hasValue = true;
-          this.inlineSeen = true;
-          this.inlineText = '';
-          this.inInline = !tag.selfClosing;
-        }
-      } else if (len === 1 && c0 === 116 /* t */) {
-        if (!tag.selfClosing) {
-          const leaf = leafText(b, tag.end, this.leaf);
-          if (leaf.next < 0) return lt;
-          if (this.inInline && this.inPhonetic === 0) this.inlineText += leafString(b, leaf);
-          p = leaf.next;
-          continue;
-        }
-      } else if (len === 3 && bytesAre(b, s, ne, 'rPh')) {
-        if (!tag.selfClosing) this.inPhonetic++;
-      } else if (len === 9 && bytesAre(b, s, ne, 'sheetData')) {
-        this.sawSheetData = true;
-        this.inSheetData = !tag.selfClosing;
-      }
-      p = tag.end + 1;
+  protected endTag(b: Buffer, s: number, e: number): void {
+    const len = e - s;
+    if (len === 1 && b[s] === 99 /* c */) this.endCell();
+    else if (len === 3 && b[s] === 114 && b[s + 1] === 111 && b[s + 2] === 119 /* row */) this.endRow();
+    else if (len === 2 && b[s] === 105 && b[s + 1] === 115 /* is */) this.inInline = false;
+    else if (len === 3 && bytesAre(b, s, e, 'rPh')) this.inPhonetic = Math.max(0, this.inPhonetic - 1);
+    else if (len === 9 && bytesAre(b, s, e, 'sheetData')) {
+      if (this.rowOpen) throw new XmlDamage('sheetData ends inside a row');
+      this.inSheetData = false;
     }
-    return n;
+  }
+
+  protected startTag(b: Buffer, s: number, ne: number): number {
+    const tag = this.tag;
+    const len = ne - s;
+    const c0 = b[s]!;
+    if (len === 1 && c0 === 99 /* c */) {
+      if (!this.rowOpen) throw new XmlDamage('a cell outside a row');
+      this.startCell(b);
+      if (tag.selfClosing) this.endCell();
+    } else if (len === 1 && c0 === 118 /* v */) {
+      if (this.cellOpen) {
+        if (tag.selfClosing) {
+          this.readValue(b, 0, 0);
+        } else {
+          const leaf = leafText(b, tag.end, this.leaf);
+          if (leaf.next < 0) return -1;
+          if (leaf.text !== null) {
+            const text = leaf.text;
+            this.hasValue = true;
+            this.valueText = text;
+            this.valueNum = Number.parseFloat(text);
+            this.valueInt = Number.parseInt(text, 10);
+          } else {
+            this.readValue(b, leaf.start, leaf.end);
+          }
+          return leaf.next;
+        }
+      }
+    } else if (len === 3 && c0 === 114 && b[s + 1] === 111 && b[s + 2] === 119 /* row */) {
+      if (this.rowOpen) throw new XmlDamage('a row inside a row');
+      this.startRow(b);
+      if (tag.selfClosing) this.endRow();
+    } else if (len === 1 && c0 === 102 /* f */) {
+      if (this.cellOpen) this.hasFormula = true;
+      // Skip the formula text (markup-free); its end tag is read next.
+      if (!tag.selfClosing) return find(b, LT, tag.end + 1);
+    } else if (len === 2 && c0 === 105 && b[s + 1] === 115 /* is */) {
+      if (this.cellOpen) {
+        this.hasValue = true;
+        this.inlineSeen = true;
+        this.inlineText = '';
+        this.inInline = !tag.selfClosing;
+      }
+    } else if (len === 1 && c0 === 116 /* t */) {
+      if (!tag.selfClosing) {
+        const leaf = leafText(b, tag.end, this.leaf);
+        if (leaf.next < 0) return -1;
+        if (this.inInline && this.inPhonetic === 0) this.inlineText += leafString(b, leaf);
+        return leaf.next;
+      }
+    } else if (len === 3 && bytesAre(b, s, ne, 'rPh')) {
+      if (!tag.selfClosing) this.inPhonetic++;
+    } else if (len === 9 && bytesAre(b, s, ne, 'sheetData')) {
+      this.sawSheetData = true;
+      this.inSheetData = !tag.selfClosing;
+    }
+    return tag.end + 1;
   }
 
   private readValue(b: Buffer, start: number, end: number): void {

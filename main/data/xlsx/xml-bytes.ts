@@ -253,3 +253,31 @@ export function intAt(b: Buffer, start: number, end: number): number {
   }
   return m;
 }
+
+/** Where the name of the end tag '</name >' starting at `lt` (its '>' at `gt`) ends: trailing spaces are allowed (XML 1.0 §3.1 ETag). */
+export function endTagNameEnd(b: Uint8Array, lt: number, gt: number): number {
+  let e = gt;
+  while (e > lt + 2 && (b[e - 1] === 32 || b[e - 1] === 9 || b[e - 1] === 10 || b[e - 1] === 13)) e--;
+  return e;
+}
+
+/** End of a comment, processing instruction, CDATA section or declaration starting at `lt`, or -1. */
+export function skipSpecial(b: Buffer, lt: number): number {
+  if (b[lt + 1] === 63) {
+    const e = b.indexOf('?>', lt + 2, 'latin1');
+    return e < 0 ? -1 : e + 2;
+  }
+  const head = b.toString('latin1', lt, Math.min(b.length, lt + 9));
+  if (head.length < 9 && '<![CDATA['.startsWith(head)) return -1;
+  if (head.length < 4) return -1;
+  if (head.startsWith('<!--')) {
+    const e = b.indexOf('-->', lt + 4, 'latin1');
+    return e < 0 ? -1 : e + 3;
+  }
+  if (head === '<![CDATA[') {
+    const e = b.indexOf(']]>', lt + 9, 'latin1');
+    return e < 0 ? -1 : e + 3;
+  }
+  const e = b.indexOf(GT, lt + 2);
+  return e < 0 ? -1 : e + 1;
+}
