@@ -80,8 +80,6 @@ export class SheetRowParser extends ChunkedXmlReader {
   private inlineText = '';
   private inSheetData = false;
   private sawSheetData = false;
-  /** Rows handed to the sink so far. */
-  rows = 0;
 
   constructor(
     private readonly shared: ReadonlyArray<string | null>,
@@ -90,11 +88,6 @@ export class SheetRowParser extends ChunkedXmlReader {
     private readonly sink: RowSink,
   ) {
     super();
-  }
-
-  /** Last row number seen (for progress). */
-  get lastRow(): number {
-    return this.rowNumber;
   }
 
   /** Throws XmlDamage when the part ended inside a row or never held sheetData. */
@@ -306,7 +299,6 @@ export class SheetRowParser extends ChunkedXmlReader {
     const view = this.view;
     view.length = 0;
     for (let k = 0; k < this.rowLength; k++) view.push(this.pool[k]!);
-    this.rows++;
     this.sink(this.rowNumber, view);
   }
 }
