@@ -1,7 +1,7 @@
 // readTable: from an agency's file (.xlsx, .csv, .txt) to typed columns, or one clear message
 // saying what is wrong with the file and what to do. Order of work: the file must exist; its
 // first bytes say what it really is (sniff.ts); its SHA-256 is taken; a workbook's zip package
-// is checked (zip-check.ts) before exceljs reads it; rows stream into a TableBuilder.
+// is checked (zip-check.ts) before read-xlsx.ts reads it; rows stream into a TableBuilder.
 
 import { createHash } from 'node:crypto';
 import { createReadStream } from 'node:fs';
@@ -11,7 +11,7 @@ import { basename, extname } from 'node:path';
 import type { Checked, Problem } from '../rules/types.ts';
 import { placePath } from './locate.ts';
 import { classifyCsvField, readCsvRows } from './read-csv.ts';
-import { classifyXlsxValue, readXlsxRows } from './read-xlsx.ts';
+import { classifySheetCell, readXlsxRows } from './read-xlsx.ts';
 import { closestName } from './similar.ts';
 import { oleIsEncryptedPackage, sniffFileKind } from './sniff.ts';
 import { TableBuilder } from './table-builder.ts';
@@ -240,15 +240,17 @@ async function readWorkbook(
     return refuse(placePath(fileName, chosen.name), `Sheet ${chosen.name} of ${fileName} is stored in a way Fenceline does not read (it may be a chart sheet). Open the workbook in Excel, save it again as .xlsx, and try again.`);
   }
   const place = (row?: number, column?: string) => placePath(fileName, chosen.name, row, column);
-  const builder = new TableBuilder(classifyXlsxValue, place, `in sheet ${chosen.name} of ${fileName}`, opts.headerRow);
-  const total = Math.max(1, chosen.lastRow);
+  const builder = new TableBuilder(classifySheetCell, place, `in sheet ${chosen.name} of ${fileName}`, opts.headerRow);
+  // Progress in bytes of the sheet's XML, shown in steps of at least 1%.
+  let total = 1;
   let lastShown = 0;
-  const problem = await readXlsxRows(path, chosen.name, builder, place, {
+  const problem = await readXlsxRows(path, info, chosen, builder, place, {
     signal,
-    onRow: (row) => {
-      if (onProgress !== undefined && row - lastShown >= total / 100) {
-        lastShown = row;
-        onProgress({ stage: 'import', done: Math.min(row, total), total });
+    onBytes: (done, of) => {
+      total = Math.max(1, of);
+      if (onProgress !== undefined && (done - lastShown >= total / 100 || done === of)) {
+        lastShown = done;
+        onProgress({ stage: 'import', done: Math.min(done, total), total });
       }
     },
   });

@@ -1,17 +1,27 @@
-// Reading one sheet of an .xlsx workbook through exceljs's streaming WorkbookReader, row by
-// row into a TableBuilder. The package was already checked by zip-check.ts.
+// Reading one sheet of an .xlsx workbook (ECMA-376 Part 1) row by row into a TableBuilder, with
+// the narrow readers of main/data/xlsx/ over node:zlib's streaming inflate of the zip parts.
+// The package was already checked by zip-check.ts. The parts are found through the workbook's
+// relationships (ECMA-376 Part 2 §9.3): the shared string table (§18.4), the styles (§18.8,
+// to know which numbers are dates), workbookPr date1904 (§18.2.28) and the sheet itself.
+// tests/data/xlsx-oracle.ts keeps the exceljs streaming reader this replaced, as the oracle of
+// the differential tests.
 
-import { createReadStream } from 'node:fs';
-import ExcelJS from 'exceljs';
 import type { Problem } from '../rules/types.ts';
 import { newParsedCell, parseCellText } from './cell-text.ts';
 import type { Classify, TableBuilder } from './table-builder.ts';
 import { CellKind } from './types.ts';
+import { SharedStringsParser } from './xlsx/shared-strings.ts';
+import { SheetRowParser, SheetValue, type SheetCell } from './xlsx/sheet-rows.ts';
+import { dateStylesOf, usesDate1904 } from './xlsx/styles.ts';
+import { XmlDamage } from './xlsx/xml-bytes.ts';
+import { partText, streamPart } from './xlsx/zip-part.ts';
+import { ZipRefusal, type SheetInfo, type WorkbookInfo, type ZipEntry } from './zip-check.ts';
 
 const MS_PER_DAY = 86_400_000;
 const parsed = newParsedCell();
 
-function classifyText(text: string, out: Parameters<Classify>[1], wantText: boolean): void {
+/** A text cell: parsed as people write numbers, dates and booleans (cell-text.ts). */
+export function classifyText(text: string, out: Parameters<Classify>[1], wantText: boolean): void {
   parseCellText(text, parsed);
   out.kind = parsed.kind;
   out.value = parsed.value;
@@ -19,137 +29,129 @@ function classifyText(text: string, out: Parameters<Classify>[1], wantText: bool
   out.text = parsed.keepText || wantText ? text : undefined;
 }
 
-/** Cell classifier for exceljs cell values (ECMA-376 Part 1 §18.3.1.4 cell types). */
-export const classifyXlsxValue: Classify = (raw, out, wantText) => {
+function setError(out: Parameters<Classify>[1], code: string): void {
+  out.kind = CellKind.Error;
+  out.value = Number.NaN;
+  out.text = code;
+}
+
+/** Cell classifier for the cells of sheet-rows.ts (ECMA-376 Part 1 §18.3.1.4 cell types). */
+export const classifySheetCell: Classify = (raw, out, wantText) => {
   out.raw = undefined;
-  if (raw === null || raw === undefined) {
-    out.kind = CellKind.Blank;
-    out.value = Number.NaN;
-    out.text = undefined;
-    return;
-  }
-  if (typeof raw === 'number') {
-    if (Number.isFinite(raw)) {
-      out.kind = CellKind.Number;
-      out.value = raw;
-      out.text = wantText ? String(raw) : undefined;
-    } else {
-      out.kind = CellKind.Error;
-      out.value = Number.NaN;
-      out.text = '#NUM!';
+  const cell = raw as SheetCell | undefined;
+  switch (cell === undefined || cell === null ? SheetValue.None : cell.type) {
+    case SheetValue.Number: {
+      const v = cell!.num;
+      if (Number.isFinite(v)) {
+        out.kind = CellKind.Number;
+        out.value = v;
+        out.text = wantText ? String(v) : undefined;
+      } else setError(out, '#NUM!');
+      return;
     }
-    return;
-  }
-  if (typeof raw === 'string') {
-    classifyText(raw, out, wantText);
-    return;
-  }
-  if (typeof raw === 'boolean') {
-    out.kind = CellKind.Bool;
-    out.value = raw ? 1 : 0;
-    out.text = wantText ? (raw ? 'TRUE' : 'FALSE') : undefined;
-    return;
-  }
-  if (raw instanceof Date) {
-    const ms = raw.getTime();
-    if (Number.isFinite(ms)) {
-      // exceljs turns a date-formatted serial into a Date (serial 25569 = 1970-01-01).
+    case SheetValue.String:
+      classifyText(cell!.text, out, wantText);
+      return;
+    case SheetValue.Date: {
+      const ms = cell!.num;
+      if (Number.isNaN(ms)) {
+        setError(out, '#VALUE!');
+        return;
+      }
+      // A date-formatted serial, as days since 1970-01-01 (serial 25569 in the 1900 system).
       out.kind = CellKind.Date;
       out.value = ms / MS_PER_DAY;
-      out.text = wantText ? raw.toISOString().slice(0, 10) : undefined;
-    } else {
-      out.kind = CellKind.Error;
+      out.text = wantText ? new Date(ms).toISOString().slice(0, 10) : undefined;
+      return;
+    }
+    case SheetValue.Bool:
+      out.kind = CellKind.Bool;
+      out.value = cell!.num;
+      out.text = wantText ? (cell!.num === 1 ? 'TRUE' : 'FALSE') : undefined;
+      return;
+    case SheetValue.Error:
+      setError(out, cell!.text);
+      return;
+    case SheetValue.NoResult:
+      out.kind = CellKind.NoResult;
       out.value = Number.NaN;
-      out.text = '#VALUE!';
-    }
-    return;
-  }
-  if (typeof raw === 'object') {
-    const v = raw as Record<string, unknown>;
-    if (typeof v.error === 'string') {
-      out.kind = CellKind.Error;
+      out.text = wantText ? '' : undefined;
+      return;
+    default:
+      out.kind = CellKind.Blank;
       out.value = Number.NaN;
-      out.text = v.error;
-      return;
-    }
-    if ('formula' in v || 'sharedFormula' in v) {
-      const result = v.result;
-      if (result === undefined || result === null) {
-        out.kind = CellKind.NoResult;
-        out.value = Number.NaN;
-        out.text = wantText ? '' : undefined;
-        return;
-      }
-      if (typeof result === 'number' && Number.isNaN(result)) {
-        // exceljs reads a formula's saved error (#N/A ...) as NaN.
-        out.kind = CellKind.Error;
-        out.value = Number.NaN;
-        out.text = '#N/A';
-        return;
-      }
-      classifyXlsxValue(result, out, wantText);
-      return;
-    }
-    if (Array.isArray(v.richText)) {
-      const text = (v.richText as Array<{ text?: unknown }>).map((r) => (typeof r.text === 'string' ? r.text : '')).join('');
-      classifyText(text, out, wantText);
-      return;
-    }
-    if (typeof v.text === 'string') {
-      classifyText(v.text, out, wantText);
-      return;
-    }
+      out.text = undefined;
   }
-  classifyText(String(raw), out, wantText);
 };
 
 export interface XlsxReadOptions {
   signal?: AbortSignal;
-  onRow?: (rowNumber: number) => void;
+  /** Progress: bytes of the sheet's XML read so far, of `total`. */
+  onBytes?: (done: number, total: number) => void;
 }
 
-/** Feed the rows of sheet `sheetName` to the builder. Returns a problem, or null when done. */
+const UNREADABLE = 'The sheet could not be read: the workbook is damaged or written in a way Fenceline does not understand. Open it in Excel, save it again as .xlsx, and try again.';
+
+/** Relationship targets of the workbook part by type ending (ECMA-376 Part 2 §9.3.2; Part 1 §12.3). */
+function relatedPart(relsXml: string, typeEnding: string): string | null {
+  for (const m of relsXml.matchAll(/<(?:\w+:)?Relationship\b([^>]*)>/g)) {
+    const type = /\bType\s*=\s*["']([^"']*)["']/.exec(m[1]!)?.[1];
+    const target = /\bTarget\s*=\s*["']([^"']*)["']/.exec(m[1]!)?.[1];
+    if (type !== undefined && target !== undefined && type.endsWith(typeEnding)) {
+      return target.startsWith('/') ? target.slice(1) : `xl/${target.replace(/^\.\//, '')}`;
+    }
+  }
+  return null;
+}
+
+class Stop extends Error {}
+
+/** Feed the rows of `sheet` to the builder. Returns a problem, or null when done (or cancelled). */
 export async function readXlsxRows(
   path: string,
-  sheetName: string,
+  workbook: WorkbookInfo,
+  sheet: SheetInfo,
   builder: TableBuilder,
   place: (row?: number) => string,
   opts: XlsxReadOptions,
 ): Promise<Problem | null> {
-  const file = createReadStream(path);
-  const reader = new ExcelJS.stream.xlsx.WorkbookReader(file, {
-    worksheets: 'emit',
-    sharedStrings: 'cache',
-    // Styles are needed to tell date-formatted numbers from plain ones.
-    styles: 'cache',
-    hyperlinks: 'ignore',
-    entries: 'ignore',
-  });
-  let found = false;
-  let count = 0;
-  try {
-    for await (const worksheet of reader) {
-      const name = (worksheet as unknown as { name?: unknown }).name;
-      if (name !== sheetName) continue;
-      found = true;
-      for await (const row of worksheet) {
-        builder.addRow(row.number, row.values as unknown[], 1);
-        if (builder.failed !== null) return builder.failed;
-        count++;
-        if ((count & 1023) === 0) {
-          opts.onRow?.(row.number);
-          if (opts.signal?.aborted) return null;
-        }
-      }
-      break;
-    }
-  } catch {
-    return { path: place(), message: 'The sheet could not be read: the workbook is damaged or written in a way Fenceline does not understand. Open it in Excel, save it again as .xlsx, and try again.' };
-  } finally {
-    file.destroy();
+  const { signal } = opts;
+  const byName = new Map<string, ZipEntry>(workbook.entries.map((e) => [e.name, e]));
+  const sheetEntry = sheet.part === null ? undefined : byName.get(sheet.part);
+  if (sheetEntry === undefined) {
+    return { path: place(), message: `Sheet ${sheet.name} could not be found inside the workbook file (it is stored in an unusual way). Open the workbook in Excel, save it again as .xlsx, and try again.` };
   }
-  if (!found) {
-    return { path: place(), message: `Sheet ${sheetName} could not be found inside the workbook file (it is stored in an unusual way). Open the workbook in Excel, save it again as .xlsx, and try again.` };
+  try {
+    const book = byName.get('xl/workbook.xml');
+    const rels = byName.get('xl/_rels/workbook.xml.rels');
+    const date1904 = book === undefined ? false : usesDate1904(await partText(path, book, signal));
+    const relsXml = rels === undefined ? '' : await partText(path, rels, signal);
+    const stylesEntry = byName.get(relatedPart(relsXml, '/styles') ?? 'xl/styles.xml');
+    const dateStyles = stylesEntry === undefined ? new Uint8Array(0) : dateStylesOf(await partText(path, stylesEntry, signal));
+    let shared: Array<string | null> = [];
+    const sstEntry = byName.get(relatedPart(relsXml, '/sharedStrings') ?? 'xl/sharedStrings.xml');
+    if (sstEntry !== undefined) {
+      const sst = new SharedStringsParser();
+      await streamPart(path, sstEntry, (chunk) => sst.feed(chunk), signal);
+      shared = sst.finish();
+    }
+    const rows = new SheetRowParser(shared, dateStyles, date1904, (rowNumber, cells) => {
+      builder.addRow(rowNumber, cells, 0);
+      if (builder.failed !== null) throw new Stop();
+    });
+    let done = 0;
+    await streamPart(path, sheetEntry, (chunk) => {
+      rows.feed(chunk);
+      done += chunk.length;
+      opts.onBytes?.(done, sheetEntry.uncompressedSize);
+      if (signal?.aborted) throw new Stop();
+    }, signal);
+    rows.finish();
+  } catch (err) {
+    if (err instanceof Stop || signal?.aborted) return builder.failed;
+    if (err instanceof ZipRefusal) return { path: place(), message: err.message };
+    if (err instanceof XmlDamage) return { path: place(), message: UNREADABLE };
+    throw err;
   }
   return null;
 }

@@ -1,14 +1,16 @@
-// Checking an .xlsx package before exceljs reads it. An .xlsx file is a zip archive (ECMA-376
+// Checking an .xlsx package before read-xlsx.ts reads it. An .xlsx file is a zip archive (ECMA-376
 // Part 2, Open Packaging Conventions); the layout below follows PKWARE's APPNOTE.TXT 6.3.10:
 //   §4.3.16 end of central directory record, §4.3.14/15 Zip64 end record and locator,
 //   §4.3.12 central directory file header, §4.3.7 local file header, §4.3.9 data descriptor,
 //   §4.5.3 Zip64 extended information extra field, §4.4.4 general purpose bit flag.
 // Two guards: (1) the sizes the central directory declares must add up to no more than the
-// limit (a "zip bomb" unpacks a small file into gigabytes); (2) every part is unpacked once
-// here, counting the bytes really produced and checking the CRC-32 the archive records, so a
-// truncated, damaged or lying file is refused with a plain message instead of reaching the
-// XML parser. While unpacking, the workbook's sheet list is read and each sheet is scanned
-// for whether it holds any value and for its last row number (for progress).
+// limit (a "zip bomb" unpacks a small file into gigabytes); (2) every part but the worksheets
+// is unpacked once here, counting the bytes really produced and checking the CRC-32 the archive
+// records, so a truncated, damaged or lying file is refused with a plain message instead of
+// reaching the XML parser. A worksheet is unpacked here only until its first value shows (to
+// tell empty sheets from sheets with data); the sheet that is read is checked the same way, in
+// full, as read-xlsx.ts unpacks it (xlsx/zip-part.ts), so the largest part is unpacked once.
+// While unpacking, the workbook's sheet list is read.
 
 import { createReadStream } from 'node:fs';
 import { open } from 'node:fs/promises';
@@ -36,13 +38,13 @@ export interface SheetInfo {
   part: string | null;
   /** The part holds at least one cell value. */
   hasValue: boolean;
-  /** Highest row number seen in the part (0 when none). */
-  lastRow: number;
 }
 
 export interface WorkbookInfo {
   sheets: SheetInfo[];
   totalUncompressed: number;
+  /** The package's parts, as the central directory lists them (checked). */
+  entries: ZipEntry[];
 }
 
 /** Why the package was refused: a plain sentence and a code for tests and logs. */
@@ -59,7 +61,7 @@ const CDH_SIG = 0x02014b50;
 const LFH_SIG = 0x04034b50;
 const MAX_ENTRIES = 100_000;
 
-const DAMAGED = 'The workbook file is damaged or incomplete (it may have been cut short while copying or downloading). Ask for the file again, or open it in Excel and save it again.';
+export const DAMAGED = 'The workbook file is damaged or incomplete (it may have been cut short while copying or downloading). Ask for the file again, or open it in Excel and save it again.';
 
 async function readAt(fh: Awaited<ReturnType<typeof open>>, position: number, length: number): Promise<Buffer> {
   const buf = Buffer.alloc(length);
@@ -224,20 +226,17 @@ export function sheetsOfWorkbook(workbookXml: string, relsXml: string): Array<{ 
 
 interface PartScan {
   hasValue: boolean;
-  lastRow: number;
 }
 
-const ROW_TAG = Buffer.from('<row ');
-const VALUE_TAGS = [Buffer.from('<v>'), Buffer.from('<v '), Buffer.from('<is>')];
+// A cell value (v) or inline string (is), with or without a namespace prefix (x:v).
+const VALUE_TAG = /<(?:[A-Za-z_][\w.-]*:)?(?:v|is)[\s>]/;
 
 function scanSheetChunk(buf: Buffer, scan: PartScan): void {
-  if (!scan.hasValue) for (const tag of VALUE_TAGS) if (buf.includes(tag)) scan.hasValue = true;
-  const at = buf.lastIndexOf(ROW_TAG);
-  if (at >= 0) {
-    const m = /^<row\b[^>]*?\sr="(\d+)"/.exec(buf.subarray(at, at + 300).toString('latin1'));
-    if (m) scan.lastRow = Math.max(scan.lastRow, Number(m[1]));
-  }
+  if (VALUE_TAG.test(buf.toString('latin1'))) scan.hasValue = true;
 }
+
+/** Thrown inside the unpacking of a worksheet once its first value showed. */
+class SeenEnough extends Error {}
 
 /**
  * Check the package and describe its sheets. Throws ZipRefusal with a plain message.
@@ -271,7 +270,7 @@ export async function inspectWorkbookZip(path: string, fileSize: number, limit: 
     const start = entry.dataStart;
     const keepText = entry.name === 'xl/workbook.xml' || entry.name === 'xl/_rels/workbook.xml.rels';
     const isSheet = /^xl\/worksheets\/[^/]+\.xml$/.test(entry.name);
-    const scan: PartScan = { hasValue: false, lastRow: 0 };
+    const scan: PartScan = { hasValue: false };
     const chunks: Buffer[] = [];
     let crc = 0;
     let size = 0;
@@ -289,7 +288,11 @@ export async function inspectWorkbookZip(path: string, fileSize: number, limit: 
         if (isSheet) {
           const joined = carry.length > 0 ? Buffer.concat([carry, chunk]) : chunk;
           scanSheetChunk(joined, scan);
-          carry = Buffer.from(joined.subarray(Math.max(0, joined.length - 300)));
+          if (scan.hasValue) {
+            done(new SeenEnough());
+            return;
+          }
+          carry = Buffer.from(joined.subarray(Math.max(0, joined.length - 64)));
         }
         done();
       },
@@ -301,6 +304,10 @@ export async function inspectWorkbookZip(path: string, fileSize: number, limit: 
       if (entry.method === 8) await pipeline(input, createInflateRaw(), sink, { signal });
       else await pipeline(input, sink, { signal });
     } catch (err) {
+      if (err instanceof SeenEnough) {
+        scans.set(entry.name, scan);
+        continue;
+      }
       if (err instanceof ZipRefusal) throw err;
       if (signal?.aborted) throw new ZipRefusal('cancelled', 'The import was cancelled.');
       throw new ZipRefusal('damaged', DAMAGED);
@@ -312,9 +319,9 @@ export async function inspectWorkbookZip(path: string, fileSize: number, limit: 
   const listed = sheetsOfWorkbook(texts.get('xl/workbook.xml') ?? '', texts.get('xl/_rels/workbook.xml.rels') ?? '');
   const sheets: SheetInfo[] = listed.map((s) => {
     const scan = s.part === null ? undefined : scans.get(s.part);
-    return { ...s, hasValue: scan?.hasValue ?? false, lastRow: scan?.lastRow ?? 0 };
+    return { ...s, hasValue: scan?.hasValue ?? false };
   });
-  return { sheets, totalUncompressed: declared };
+  return { sheets, totalUncompressed: declared, entries };
 }
 
 export function formatBytes(bytes: number): string {
