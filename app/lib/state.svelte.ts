@@ -113,6 +113,8 @@ export class AppState {
       this.step = s.step;
       this.notice = 'Reopened where you were, with your unsaved edits.';
       if (s.runJob) void this.followRun(s.runJob);
+      // What the main side said about the study is not kept: ask again (the data check gates Run).
+      else if (this.draft.data.path) void this.checkData();
     }
     this.restored = true;
   }
@@ -183,6 +185,7 @@ export class AppState {
   }
 
   private resetDerived(): void {
+    this.draftFingerprint = null;
     this.programCheck = null; this.tryReport = null; this.tryProblems = [];
     this.preview = null; this.joinPreviews = {}; this.previewProblems = [];
     this.dataReport = null; this.dataProblems = []; this.dataReportKey = '';
@@ -451,6 +454,8 @@ export class AppState {
     this.draft = normalizeDraft(r.value.study);
     this.savedKey = this.draftKey();
     this.baseDir = null; this.studyPath = null; this.fromSample = false; this.openProblems = [];
+    this.draftFingerprint = null;
+    void this.refreshFingerprint();
     this.showRun(r.value);
     this.step = 'evidence';
     return [];

@@ -12,7 +12,7 @@ import { writeRun } from '../pipeline/record.ts';
 import { prepareStudy, runStudy } from '../pipeline/run-study.ts';
 import { MEMO_FILE_NAMES } from '../report/memo-files.ts';
 import { describeProgram } from '../rules/wording.ts';
-import { studyFingerprint } from '../studyfile/fingerprint.ts';
+import { studyFingerprint, withAbsolutePaths } from '../studyfile/fingerprint.ts';
 import { SAMPLES_DIR } from '../resources.ts';
 import { loadAllowedStudy, refuseIf, studyDataPaths, workspaceProblem, writeProblem } from './access.ts';
 import { refuse, type CallContext } from './context.ts';
@@ -100,7 +100,9 @@ export async function evaluateStudy(args: EvaluateArgs, ctx: HostContext = {}): 
   const studySha256 = studyFingerprint(study.value, loaded.value.baseDir);
   let written;
   try {
-    written = await writeRun(study.value, studySha256, r, {
+    // The workspace keeps the study as run with its file paths made absolute, so a reopened run
+    // names the same files wherever its copy of the study lives.
+    written = await writeRun(withAbsolutePaths(study.value, loaded.value.baseDir), studySha256, r, {
       outDir: resolve(args.outDir),
       formats,
       ...(args.workspacePath ? { workspacePath: resolve(args.workspacePath) } : {}),

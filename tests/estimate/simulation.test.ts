@@ -24,8 +24,11 @@ describe(`APS estimator on simulated studies with a known effect (${R} replicati
       expect(Math.abs(c.meanNaive - dgp.truth)).toBeGreaterThan(5 * Math.max(mcse, c.sdNaive / Math.sqrt(R)));
       expect(c.covered).toBeGreaterThanOrEqual(44);
       expect(c.meanN).toBeGreaterThan(400);
-      // Process B has balls crossing both criteria (corners): their APS is simulated.
-      expect(c.withSimulatedAps > 0).toBe(dgp.name.startsWith('B'));
+      // Process B has balls crossing both criteria (corners); both are linear, so their APS is
+      // exact (design/corners.ts) and nothing is simulated.
+      expect(c.withCorners > 0).toBe(dgp.name.startsWith('B'));
+      expect(c.withAllCornersExact).toBe(c.withCorners);
+      expect(c.withSimulatedAps).toBe(0);
     });
   }
 

@@ -170,8 +170,11 @@ export interface Replication {
   naive: number;
   ivNoControl: number;
   n: number;
-  /** Units whose APS was simulated (balls crossing a corner of an "all" rule) and exact. */
+  /** Units whose APS was simulated and exact. */
   simulated: number;
+  /** Units whose ball crosses two or more criteria (a corner of an "all" rule), and of them computed exactly. */
+  corner: number;
+  cornerExact: number;
   exact: number;
   result: ApsIvResult;
 }
@@ -190,7 +193,7 @@ export function replicate(dgp: Dgp, seed: number): Replication {
   const b = o.byDelta[0]!;
   if (!b.estimable) throw new Error(`${dgp.name}, seed ${seed}: not estimable: ${JSON.stringify(b.warnings)}`);
   const summary = ps.value.summary[0]!;
-  return { estimate: b.estimate!, ci: b.ci!, naive: o.naiveOls.estimate!, ivNoControl: o.ivNoControl.estimate!, n: b.n, simulated: summary.simulated, exact: summary.exact, result };
+  return { estimate: b.estimate!, ci: b.ci!, naive: o.naiveOls.estimate!, ivNoControl: o.ivNoControl.estimate!, n: b.n, simulated: summary.simulated, exact: summary.exact, corner: summary.corner, cornerExact: summary.cornerExact, result };
 }
 
 export interface CoverageSummary {
@@ -204,6 +207,9 @@ export interface CoverageSummary {
   meanN: number;
   /** Replications in which some APS was simulated. */
   withSimulatedAps: number;
+  /** Replications with corner units, and in which every corner unit's APS was exact. */
+  withCorners: number;
+  withAllCornersExact: number;
 }
 
 export function coverage(dgp: Dgp, replications: number, firstSeed = 1): CoverageSummary {
@@ -213,6 +219,8 @@ export function coverage(dgp: Dgp, replications: number, firstSeed = 1): Coverag
   let covered = 0;
   let nSum = 0;
   let withSimulated = 0;
+  let withCorners = 0;
+  let withAllCornersExact = 0;
   for (let k = 0; k < replications; k++) {
     const rep = replicate(dgp, firstSeed + k);
     est.push(rep.estimate);
@@ -220,6 +228,8 @@ export function coverage(dgp: Dgp, replications: number, firstSeed = 1): Coverag
     iv.push(rep.ivNoControl);
     nSum += rep.n;
     if (rep.simulated > 0) withSimulated++;
+    if (rep.corner > 0) withCorners++;
+    if (rep.corner > 0 && rep.cornerExact === rep.corner) withAllCornersExact++;
     if (rep.ci[0] <= dgp.truth && dgp.truth <= rep.ci[1]) covered++;
   }
   const mean = (v: number[]) => v.reduce((a, b) => a + b, 0) / v.length;
@@ -237,5 +247,7 @@ export function coverage(dgp: Dgp, replications: number, firstSeed = 1): Coverag
     meanIvNoControl: mean(iv),
     meanN: nSum / replications,
     withSimulatedAps: withSimulated,
+    withCorners,
+    withAllCornersExact,
   };
 }
