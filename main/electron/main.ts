@@ -150,6 +150,19 @@ async function start(): Promise<void> {
   window = new BrowserWindow(windowOptions(join(here, 'preload.js'), !app.isPackaged));
   window.once('ready-to-show', () => window?.show());
   window.on('closed', () => { for (const c of calls.values()) c.abort(); window = null; });
+  // Closing with edits not saved in a study file: the page's beforeunload holds the close, and
+  // the analyst chooses (the edits are also kept in the workspace and come back at the next start).
+  window.webContents.on('will-prevent-unload', (event) => {
+    const choice = dialog.showMessageBoxSync(window!, {
+      type: 'question',
+      buttons: ['Close anyway', 'Stay'],
+      defaultId: 1,
+      cancelId: 1,
+      message: 'The open study has changes that are not saved in a study file.',
+      detail: 'They are kept in the workspace and come back when you open Fenceline again; to keep a file of them, stay and choose Save.',
+    });
+    if (choice === 0) event.preventDefault(); // let the window close
+  });
   await window.loadURL(APP_ENTRY);
 }
 

@@ -153,7 +153,7 @@ export function boundaryMapData(run: MapRun, opts: BoundaryMapOptions = {}): Bou
   const cols = prepared.cols;
   const deltas = results.settings.deltas;
   const d = program.continuous.length;
-  if (d < 2) return { map: null, note: `The map of the rule’s edge needs two continuous inputs; this rule has ${d === 1 ? 'one' : 'none'}, so no map is drawn: along a single input the edge is the limit itself, as the rule's reading states it.` };
+  if (d < 2) return { map: null, note: `The map of the rule’s edge needs two continuous inputs; this rule has ${d === 1 ? 'one' : 'none'}, so no map is drawn; the distance and density figures show the edge along that input (outcomes and take-up by distance to the limit, and how many units sit on each side of it).` };
   // Options arrive checked (main/api/figures.ts says what is wrong in words); a bad one here is a fault.
   const k = opts.delta === undefined ? headlineIndex(results) : deltaIndex(deltas, opts.delta);
   if (k < 0) throw new RangeError(`boundaryMapData: delta ${opts.delta} is not one of the run's deltas`);

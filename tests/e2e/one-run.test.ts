@@ -87,6 +87,9 @@ describe('one run, one truth', () => {
     expect(await page.getByTestId('out-of-date').count()).toBe(0);
     await step('Map').click();
     await page.getByTestId('map-chart').locator('canvas').waitFor({ timeout: 60_000 });
+    // the edge along one input too (distance and density), from the same stored run
+    await page.getByTestId('edge-figures').locator('canvas').first().waitFor({ timeout: 60_000 });
+    await shot(page, '13-reopened-run-map');
     await step('Memo').click();
     const files = await page.getByTestId('memo-files').locator('li .hint').allTextContents();
     expect(files.length).toBeGreaterThan(0);
