@@ -5,7 +5,7 @@
 // and loading the memo renderers' chunks on first use.
 
 import { spawn } from 'node:child_process';
-import { mkdtempSync, readFileSync } from 'node:fs';
+import { existsSync, mkdtempSync, readFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
@@ -41,6 +41,14 @@ describe('npm run serve, from the bundles', () => {
       child.kill('SIGTERM');
     }
   }, 60_000);
+});
+
+describe('the bundled server finds its job worker beside itself', () => {
+  it('serve.js starts dist-node/job-worker.js (worker-runner.ts: the built file beside the module, else the tsx entry)', () => {
+    const text = readFileSync(join(ROOT, NODE_OUT_DIR, 'serve.js'), 'utf8');
+    expect(text).toContain('new URL("./job-worker.js", import.meta.url)');
+    expect(existsSync(join(ROOT, NODE_OUT_DIR, 'job-worker.js'))).toBe(true);
+  });
 });
 
 describe('the bundled job worker, in plain Node', () => {
