@@ -45,7 +45,10 @@ describe('npm run serve, from the bundles', () => {
 
 describe('the bundled server finds its job worker beside itself', () => {
   it('serve.js starts dist-node/job-worker.js (worker-runner.ts: the built file beside the module, else the tsx entry)', () => {
-    const text = readFileSync(join(ROOT, NODE_OUT_DIR, 'serve.js'), 'utf8');
+    // serve.js and the chunks it imports at start (from the build's manifest), all in dist-node/
+    const manifest = JSON.parse(readFileSync(join(ROOT, NODE_OUT_DIR, 'inputs.json'), 'utf8')) as { entries: Record<string, { static: string[] }> };
+    const files = ['serve.js', ...manifest.entries['serve.js']!.static.filter((f) => f.startsWith(`${NODE_OUT_DIR}/`)).map((f) => f.slice(NODE_OUT_DIR.length + 1))];
+    const text = files.map((f) => readFileSync(join(ROOT, NODE_OUT_DIR, f), 'utf8')).join('\n');
     expect(text).toContain('new URL("./job-worker.js", import.meta.url)');
     expect(existsSync(join(ROOT, NODE_OUT_DIR, 'job-worker.js'))).toBe(true);
   });
