@@ -6,11 +6,13 @@ import { availableParallelism } from 'node:os';
 import { parseArgs } from 'node:util';
 import { OUTPUT_FORMATS, type ApiResult, type OutputFormat, type SettingsOverrides } from './contract/api.ts';
 import type { Problem } from './rules/types.ts';
-import { checkStudy, evaluateStudy, runDemo } from './api.ts';
 import { workersProblem } from './api/args.ts';
-import { AVAILABLE_MEMO_FORMATS } from './api/evaluate.ts';
-import { progressPrinter, type ProgressPrinter } from './cli/progress.ts';
+import type { ProgressPrinter } from './cli/progress.ts';
 import { formatCheckReport, formatEvaluateSummary } from './cli/summaries.ts';
+
+// The api (and through it the data readers, the store, the estimators) and the progress bar load
+// only once a command is known to run: `--help` and a wrong command line answer without them.
+// The memo renderers load later still, when a memo is written (main/report/memo-files.ts).
 
 const USAGE = `Fenceline — evaluate a program whose eligibility is set by a formula.
 
@@ -153,6 +155,8 @@ async function main(argv: string[]): Promise<number> {
     return 0;
   }
   if (values.help || !command) { process.stdout.write(USAGE + '\n'); return values.help ? 0 : 2; }
+  const [{ checkStudy, evaluateStudy, runDemo }, { AVAILABLE_MEMO_FORMATS }, { progressPrinter }] =
+    await Promise.all([import('./api.ts'), import('./api/evaluate.ts'), import('./cli/progress.ts')]);
   const printer = progressPrinter(process.stderr, !values.quiet);
   activePrinter = printer;
   const controller = new AbortController();

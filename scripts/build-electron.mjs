@@ -23,6 +23,23 @@ const ESM_BANNER = [
   'const require = __fencelineCreateRequire(import.meta.url);',
 ].join('\n');
 
+/** esbuild settings of an ES-module bundle for Node (the main process, the workers; also scripts/build-node.mjs). */
+export function esmBundleOptions(external = config.external) {
+  return {
+    bundle: true,
+    platform: 'node',
+    target: 'node20',
+    format: 'esm',
+    external,
+    banner: { js: ESM_BANNER },
+    // No source maps in what ships (they would hand out the sources, comments included); debug from the sources with tsx.
+    sourcemap: false,
+    legalComments: 'linked',
+  };
+}
+
+export { config as electronConfig };
+
 /** Build the bundles of electron.config.ts into `outDir` (default: config.outDir); the renderer too unless `renderer: false`. */
 export async function buildElectron({ outDir = join(root, config.outDir), renderer = true, quiet = false } = {}) {
   const outputs = [];
@@ -32,17 +49,11 @@ export async function buildElectron({ outDir = join(root, config.outDir), render
     const preload = e.target === 'preload';
     rmSync(`${outfile}.map`, { force: true }); // left by an older build that wrote maps
     await build({
+      ...(preload
+        ? { bundle: true, platform: 'node', target: 'node20', format: 'cjs', external: ['electron'], sourcemap: false, legalComments: 'linked' }
+        : esmBundleOptions()),
       entryPoints: [join(root, e.entry)],
       outfile,
-      bundle: true,
-      platform: 'node',
-      target: 'node20',
-      format: preload ? 'cjs' : 'esm',
-      external: preload ? ['electron'] : config.external,
-      ...(preload ? {} : { banner: { js: ESM_BANNER } }),
-      // No source maps in what ships (they would hand out the sources, comments included); debug from the sources with tsx.
-      sourcemap: false,
-      legalComments: 'linked',
       logLevel: quiet ? 'error' : 'warning',
     });
     outputs.push(outfile);

@@ -36,7 +36,8 @@ if (binary) {
   }
 } else if (existsSync(serveEntry)) {
   console.error('The Electron runtime is not installed on this machine, so Fenceline opens in browser mode instead.');
-  const serve = () => spawn(process.execPath, ['--import', 'tsx', serveEntry, ...process.argv.slice(2)], { stdio: 'inherit', cwd: root })
+  // As npm run serve starts it: the bundled server (dist-node/serve.js), rebuilt first if out of date.
+  const serve = () => spawn(process.execPath, [join(root, 'scripts/launch.mjs'), 'serve', ...process.argv.slice(2)], { stdio: 'inherit', cwd: root })
     .on('exit', (code) => process.exit(code ?? 0));
   if (existsSync(join(root, 'dist/renderer/index.html'))) serve();
   else {

@@ -11,11 +11,7 @@ import { showsIndividualUnits } from './charts/spec.ts';
 import type { Document } from './model/document.ts';
 import type { FigureData } from './model/figure-types.ts';
 import { buildMemo, type MemoOptions } from './model/memo.ts';
-import { renderDocx } from './render/docx.ts';
 import { figuresOf, renderFigures } from './render/figures.ts';
-import { renderHtml } from './render/html.ts';
-import { renderPdf } from './render/pdf.ts';
-import { renderXlsx } from './render/xlsx.ts';
 
 export const MEMO_FILE_NAMES: Readonly<Record<OutputFormat, string>> = {
   pdf: 'memo.pdf',
@@ -24,11 +20,13 @@ export const MEMO_FILE_NAMES: Readonly<Record<OutputFormat, string>> = {
   xlsx: 'tables.xlsx',
 };
 
+// Each renderer and the library behind it (pdfkit, docx, exceljs) is loaded on first use, so a
+// start that writes no memo (check, --help, a run with --formats none) loads none of them.
 const RENDERERS: Readonly<Record<OutputFormat, (doc: Document, figures: Map<string, Buffer>) => Promise<Buffer | string>>> = {
-  pdf: (doc, figures) => renderPdf(doc, { figures }),
-  html: (doc, figures) => renderHtml(doc, { figures }),
-  docx: (doc, figures) => renderDocx(doc, { figures }),
-  xlsx: (doc) => renderXlsx(doc),
+  pdf: async (doc, figures) => (await import('./render/pdf.ts')).renderPdf(doc, { figures }),
+  html: async (doc, figures) => (await import('./render/html.ts')).renderHtml(doc, { figures }),
+  docx: async (doc, figures) => (await import('./render/docx.ts')).renderDocx(doc, { figures }),
+  xlsx: async (doc) => (await import('./render/xlsx.ts')).renderXlsx(doc),
 };
 
 export interface MemoFilesOptions extends MemoOptions {

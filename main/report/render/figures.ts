@@ -3,8 +3,13 @@
 import { Cancelled } from '../../design/propensity.ts';
 import type { Document, Figure } from '../model/document.ts';
 import { flattenSections } from '../model/format.ts';
-import { renderChartPng } from './chart-png.ts';
+import type { ChartPngOptions } from './chart-png.ts';
 import { DEFAULT_CHART_SIZE, type ChartSize, type RenderOptions } from './options.ts';
+
+/** chart.js on @napi-rs/canvas, loaded with the first figure drawn: a start that draws none (check, --help) never loads them. */
+async function renderChartPng(chart: Figure['chart'], options: ChartPngOptions): Promise<Buffer> {
+  return (await import('./chart-png.ts')).renderChartPng(chart, options);
+}
 
 export function figuresOf(doc: Document): Figure[] {
   return flattenSections(doc).flatMap(({ section }) => section.blocks.filter((b): b is Figure => b.kind === 'figure'));
