@@ -460,8 +460,10 @@ export function mapStudyColumns(table: RawTable, spec: ColumnSpec, joins: readon
     }
     if (missing.count > 0) {
       const label = spec.outcomes[o]!.label ?? res!.header;
-      const why = [...causes].map(([cause, count]) => `${count}: ${cause}`).join('; ');
-      notes.push({ code: 'outcome-missing', message: `Outcome ${label} is missing for ${missing.count} of the ${n} units used (${why}); they are left out of that outcome only (rows ${listRows(missing.rows, missing.count)}).` });
+      const grouped = (k: number) => k.toLocaleString('en-US');
+      const why = causes.size === 1 ? [...causes.keys()][0]! : [...causes].map(([cause, count]) => `${grouped(count)}: ${cause}`).join('; ');
+      const units = missing.count === 1 ? 'unit' : 'units';
+      notes.push({ code: 'outcome-missing', message: `Outcome ${label} is missing for ${grouped(missing.count)} of the ${grouped(n)} units used (${why}); ${missing.count === 1 ? 'it is' : 'they are'} left out of that outcome only (${units === 'unit' ? 'row' : 'rows'} ${listRows(missing.rows, missing.count)}).` });
     }
     outcomeArrays.push(out);
     outcomeMissing.push(missing);
