@@ -462,8 +462,9 @@ export function mapStudyColumns(table: RawTable, spec: ColumnSpec, joins: readon
       const label = spec.outcomes[o]!.label ?? res!.header;
       const grouped = (k: number) => k.toLocaleString('en-US');
       const why = causes.size === 1 ? [...causes.keys()][0]! : [...causes].map(([cause, count]) => `${grouped(count)}: ${cause}`).join('; ');
-      const units = missing.count === 1 ? 'unit' : 'units';
-      notes.push({ code: 'outcome-missing', message: `Outcome ${label} is missing for ${grouped(missing.count)} of the ${grouped(n)} units used (${why}); ${missing.count === 1 ? 'it is' : 'they are'} left out of that outcome only (${units === 'unit' ? 'row' : 'rows'} ${listRows(missing.rows, missing.count)}).` });
+      // One wording whatever the count: the memo shares this note with the counts taken out, and a
+      // singular verb would give a count of one away (docs/method.md, disclosure).
+      notes.push({ code: 'outcome-missing', message: `Outcome ${label} is missing for ${grouped(missing.count)} of the ${grouped(n)} units used (${why}); they are left out of that outcome only (rows ${listRows(missing.rows, missing.count)}).` });
     }
     outcomeArrays.push(out);
     outcomeMissing.push(missing);
