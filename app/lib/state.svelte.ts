@@ -457,7 +457,9 @@ export class AppState {
     this.draftFingerprint = null;
     void this.refreshFingerprint();
     this.showRun(r.value);
+    if (r.value.status === 'complete') this.notice = `Opened run ${r.value.runId} of “${r.value.studyName}”: its results, map and memo files, as recorded.`;
     this.step = 'evidence';
+    if (this.draft.data.path) void this.checkData(); // the study as run names its files by full path
     return [];
   }
 
