@@ -183,7 +183,10 @@ const mutation = fc.record({
   newKey: fc.oneof(fc.string({ maxLength: 8 }), fc.constantFrom('limt', 'al', 'vaule', '__proto__', 'constructor', 'else', 'in')),
 });
 
-function applyMutation(root: unknown, m: { at: number; how: string; with: unknown; newKey: string }): void {
+function applyMutation(root: unknown, mutation: { at: number; how: string; with: unknown; newKey: string }): void {
+  // A fresh copy of the inserted value: fc.constantFrom hands out the same object every time, and
+  // inserting one instance twice could put it inside itself (a cycle no JSON program can have).
+  const m = { ...mutation, with: structuredClone(mutation.with) };
   const slots = slotsOf(root);
   if (slots.length === 0) return;
   const { parent, key } = slots[m.at % slots.length]!;
