@@ -6,11 +6,10 @@
 
 import type { ApiResult, EdgeFigures, EdgeFiguresArgs, MapArgs, MapFigure } from '../contract/api.ts';
 import type { Study } from '../contract/study.ts';
-import type { BoundaryMapSpec } from '../report/charts/spec.ts';
 import { boundaryMapChoices, boundaryMapData, deltaIndex, discreteCodes, type MapRun } from '../report/boundary-map.ts';
+import { mapNote, mapSpec } from '../report/map-figure.ts';
 import { densityData, signedDistanceData } from '../report/figure-data.ts';
 import { edgeFigures } from '../report/model/edge-figures.ts';
-import type { BoundaryMapData } from '../report/model/figure-types.ts';
 import type { RunView } from '../report/run-view.ts';
 import { openStoredRun } from '../pipeline/record.ts';
 import type { Checked, Problem } from '../rules/types.ts';
@@ -89,31 +88,6 @@ function cellValueProblems(run: MapRun, args: MapArgs): Problem[] {
     }
   });
   return problems;
-}
-
-function mapSpec(map: BoundaryMapData): BoundaryMapSpec {
-  return {
-    kind: 'boundaryMap',
-    title: 'Where the edge of the rule runs',
-    ...(map.panel || map.heldFixed.length ? { subtitle: [map.panel, ...map.heldFixed].filter(Boolean).join(' · ') } : {}),
-    x: { label: map.x.label, ...(map.x.unit ? { unit: map.x.unit } : {}) },
-    y: { label: map.y.label, ...(map.y.unit ? { unit: map.y.unit } : {}) },
-    grid: map.grid,
-    delta: map.delta,
-    ...(map.view === 'binned' ? { counts: map.counts } : { units: { offered: map.units.offered, notOffered: map.units.notOffered } }),
-  };
-}
-
-function mapNote(map: BoundaryMapData): string | null {
-  const held = [map.panel ?? '', ...map.heldFixed];
-  if (map.heldFixed.length) held.push(`the shading and the band hold the other continuous input${map.heldFixed.length > 1 ? 's' : ''} at the median named`);
-  const sentences = [held.filter(Boolean).join('; ')];
-  if (map.view === 'units') {
-    const u = map.units;
-    sentences.push(`Private view: each mark is one unit of this cell${map.heldFixed.length ? ', whatever its other inputs' : ''} (triangles offered, circles not offered)${u.drawn < u.total ? `; an even sample of ${u.drawn.toLocaleString('en-US')} of ${u.total.toLocaleString('en-US')} units is drawn` : ''}. It is never put in the memo or exported files`);
-  }
-  const text = sentences.filter(Boolean).join('. ');
-  return text ? `${text}.` : null;
 }
 
 export async function boundaryMap(args: MapArgs, ctx: HostContext = {}): Promise<ApiResult<MapFigure>> {

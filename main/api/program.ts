@@ -7,31 +7,14 @@ import { formattedNumber } from '../data/cell-text.ts';
 import { holds } from '../rules/atoms.ts';
 import { discreteCode, lowerValidatedProgram } from '../rules/compile.ts';
 import { compilePoint } from '../rules/evaluate-scalar.ts';
-import type { CompiledProgram, IrNode } from '../rules/ir.ts';
+import type { CompiledProgram } from '../rules/ir.ts';
+import { keysIn } from '../rules/keys-read.ts';
 import { isPlainObject, getOwn, describeGiven } from '../rules/json-read.ts';
 import { evalTree3, FALSE, TRUE, UNKNOWN, type Tri } from '../rules/logic.ts';
 import type { Problem, Program } from '../rules/types.ts';
 import { validateProgram } from '../rules/validate.ts';
 import { describeCondition, describeOffer, describeProgram, formatPercent } from '../rules/wording.ts';
 import { refuse } from './context.ts';
-
-/** Keys of the variables a lowered expression reads (lookups read their `by` variable too). */
-function keysIn(node: IrNode, p: CompiledProgram, out: Set<string>): Set<string> {
-  switch (node.k) {
-    case 'const': break;
-    case 'cont': out.add(p.continuous[node.i]!.key); break;
-    case 'disc': out.add(p.discrete[node.i]!.key); break;
-    case 'neg': keysIn(node.a, p, out); break;
-    case 'min': case 'max': for (const a of node.args) keysIn(a, p, out); break;
-    case 'lookup':
-      out.add(p.discrete[node.by]!.key);
-      for (const b of node.table.values()) keysIn(b, p, out);
-      if (node.otherwise) keysIn(node.otherwise, p, out);
-      break;
-    default: keysIn(node.a, p, out); keysIn(node.b, p, out);
-  }
-  return out;
-}
 
 function criteriaOf(compiled: CompiledProgram, program: Program): CriterionInfo[] {
   return compiled.atoms.map((a) => ({
