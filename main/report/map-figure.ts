@@ -1,21 +1,9 @@
-// The boundary-region map as the app's Map screen draws it: the chart spec (the memo's own, from
-// main/report/charts) and the note under it, from the map's data (boundary-map.ts).
+// The boundary-region map as the app's Map screen draws it: the chart spec (the memo's own,
+// model/map-spec.ts) and the note under it, from the map's data (boundary-map.ts).
 
-import type { BoundaryMapSpec } from './charts/spec.ts';
 import type { BoundaryMapData } from './model/figure-types.ts';
 
-export function mapSpec(map: BoundaryMapData): BoundaryMapSpec {
-  return {
-    kind: 'boundaryMap',
-    title: 'Where the edge of the rule runs',
-    ...(map.panel || map.heldFixed.length ? { subtitle: [map.panel, ...map.heldFixed].filter(Boolean).join(' · ') } : {}),
-    x: { label: map.x.label, ...(map.x.unit ? { unit: map.x.unit } : {}) },
-    y: { label: map.y.label, ...(map.y.unit ? { unit: map.y.unit } : {}) },
-    grid: map.grid,
-    delta: map.delta,
-    ...(map.view === 'binned' ? { counts: map.counts } : { units: { offered: map.units.offered, notOffered: map.units.notOffered } }),
-  };
-}
+export { mapSpec } from './model/map-spec.ts';
 
 export function mapNote(map: BoundaryMapData): string | null {
   const held = [map.panel ?? '', ...map.heldFixed];

@@ -3,6 +3,7 @@
 // the tables, which come from results.json).
 
 import type { Figure } from './document.ts';
+import { mapSpec } from './map-spec.ts';
 import type { MemoContext } from './memo-context.ts';
 import { criterionText, outcomeName, lowerFirst } from './memo-format.ts';
 import { MEMO_CONSTANTS } from './memo-constants.ts';
@@ -16,16 +17,7 @@ export function boundaryMapFigure(ctx: MemoContext): Figure | null {
   return {
     kind: 'figure',
     id: 'fig-boundary-map',
-    chart: {
-      kind: 'boundaryMap',
-      title: 'Where the edge of the rule runs',
-      ...(m.panel || m.heldFixed.length ? { subtitle: [m.panel, ...m.heldFixed].filter(Boolean).join(' · ') } : {}),
-      x: { label: m.x.label, ...(m.x.unit ? { unit: m.x.unit } : {}) },
-      y: { label: m.y.label, ...(m.y.unit ? { unit: m.y.unit } : {}) },
-      grid: m.grid,
-      delta: m.delta,
-      counts: m.counts,
-    },
+    chart: mapSpec(m),
     caption: `The rule’s offer over ${lowerFirst(m.x.label)} and ${lowerFirst(m.y.label)}: shading shows the chance of an offer, the hatched band the ${many} counted as near the edge at the headline delta, and circles how many ${many} fall in each area (areas with few ${many} are left blank).${m.panel ? ' Other inputs are held at the values named above the map.' : ''}`,
     alt: `A map with ${m.x.label} across and ${m.y.label} up. Shaded areas are where the rule offers the benefit; a hatched band follows the edge of the rule; circles show where ${many} are, with blank areas where there are too few to show.`,
   };
