@@ -27,6 +27,9 @@ export interface StudyBlock {
   rowsExcluded: ExclusionReason[];
   joins: Array<{ source: string; sha256: string; matched: number; unmatchedKeys: { count: number; examples: string[] }; duplicateKeys: { count: number; examples: string[] } }>;
   notes: Array<{ code: string; message: string }>;
+  /** The name the memo prints for each column it mentions: a rule input's variable label, the
+   * study's column labels (columns.labels), else a word for the column's role ("ID", "take-up"). */
+  columnLabels?: Record<string, string>;
 }
 
 export interface ProgramBlock {
@@ -39,7 +42,9 @@ export interface ProgramBlock {
   offerWording: string;
   /** Deterministic (offer 1/0) or a lottery. */
   offerKind: 'deterministic' | 'lottery';
-  criteria: Array<{ atom: number; path: string; description: string; linear: boolean; movesWithContinuous: boolean }>;
+  /** Each criterion: `description` in full words (printed once), `shortName` for every later mention
+   * (the analyst's label, else the criterion written with the variables' keys; main/rules/short-name.ts). */
+  criteria: Array<{ atom: number; path: string; description: string; shortName?: string; linear: boolean; movesWithContinuous: boolean }>;
 }
 
 export interface Fidelity {

@@ -34,6 +34,10 @@ export interface StudyColumns {
   cluster?: string;
   covariates?: string[];
   controls?: string[];
+  /** Names the memo prints for columns that are not rule inputs (covariates, controls, cluster,
+   * treatment, decision, ID), by column name: "BILL_BEFORE": "Monthly heating bill the winter before (USD)".
+   * A column without one is printed by its name. Extension of format 1. */
+  labels?: Record<string, string>;
 }
 
 export interface StudySettings {

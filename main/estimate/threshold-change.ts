@@ -63,6 +63,8 @@ export interface LimitScenario {
   /** JSON path of the limit, e.g. program.rule.all[0].limit.table.2 */
   path: string;
   description: string;
+  /** For a limit from a table: the group it applies to ("size = 2", "other values of size"). */
+  group?: string;
   original: ExprSource;
   changed: ExprSource;
   relativeChange: number;
@@ -88,6 +90,7 @@ export interface ThresholdChangeResult {
 interface LimitSlot {
   path: string;
   description: string;
+  group?: string;
   get: () => ExprSource;
   set: (v: ExprSource) => void;
 }
@@ -108,6 +111,7 @@ export function collectLimits(rule: Condition, path: string): LimitSlot[] {
         out.push({
           path: `${p}.limit.table.${key}`,
           description: `limit on ${what} for ${lookup.by} = ${key}`,
+          group: `${lookup.by} = ${key}`,
           get: () => lookup.table[key]!,
           set: (v) => {
             lookup.table[key] = v;
@@ -118,6 +122,7 @@ export function collectLimits(rule: Condition, path: string): LimitSlot[] {
         out.push({
           path: `${p}.limit.else`,
           description: `limit on ${what} for other values of ${lookup.by}`,
+          group: `other values of ${lookup.by}`,
           get: () => lookup.else!,
           set: (v) => {
             lookup.else = v;
@@ -197,6 +202,7 @@ export function thresholdChanges(input: ThresholdChangeInput): ThresholdChangeRe
       scenarios.push({
         path: slot.path,
         description: slot.description,
+        ...(slot.group !== undefined ? { group: slot.group } : {}),
         original: slot.get(),
         changed,
         relativeChange: r,

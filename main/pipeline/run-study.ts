@@ -30,6 +30,7 @@ import { lowerValidatedProgram } from '../rules/compile.ts';
 import type { CompiledProgram } from '../rules/ir.ts';
 import type { Checked, Problem } from '../rules/types.ts';
 import { describeCondition, describeOffer, describeProgram } from '../rules/wording.ts';
+import { criterionShortName, distinctShortNames } from '../rules/short-name.ts';
 import type { GridBand } from '../report/run-view.ts';
 import { SOFTWARE_VERSION } from '../store/software-version.ts';
 
@@ -276,6 +277,7 @@ export async function runStudy(study: Study, options: RunOptions): Promise<Check
       rowsExcluded,
       joins: mapped.joins.map((j) => ({ ...j, sha256: read.joinHashes.get(j.source) ?? '' })),
       notes: mapped.notes,
+      columnLabels: columnLabels(study),
     },
     program: {
       name: study.program.name,
@@ -284,7 +286,7 @@ export async function runStudy(study: Study, options: RunOptions): Promise<Check
       wording: describeProgram(study.program),
       offerWording: describeOffer(study.program.offer, study.program.unit ?? 'unit'),
       offerKind: prepared.instrument.source === 'formula' ? 'deterministic' : 'lottery',
-      criteria: program.atoms.map((a) => ({ atom: a.index, path: a.path, description: describeCondition(a.condition, study.program), linear: a.linear, movesWithContinuous: a.dependsOnContinuous })),
+      criteria: criteriaBlock(program.atoms, study.program),
     },
     settings: {
       deltas: ps.deltas.slice(), draws: settings.draws, seed: settings.seed, smallCellMax: study.settings.smallCellMax,
@@ -332,6 +334,24 @@ export async function runStudy(study: Study, options: RunOptions): Promise<Check
 function dedupe(ws: Warning[]): Warning[] {
   const seen = new Set<string>();
   return ws.filter((w) => { const k = `${w.code}\u0000${w.message}`; if (seen.has(k)) return false; seen.add(k); return true; });
+}
+
+/** The memo's name for every column it may mention (results.study.columnLabels). */
+function columnLabels(study: Study): Record<string, string> {
+  const c = study.columns;
+  const out: Record<string, string> = { [c.id]: 'ID' };
+  if (typeof c.treatment === 'string') out[c.treatment] = 'take-up';
+  if (c.decision) out[c.decision] = 'recorded decision';
+  if (c.cluster) out[c.cluster] = 'cluster';
+  for (const v of study.program.variables) out[v.column] = v.label;
+  for (const o of c.outcomes) if (o.label) out[o.column] = o.label;
+  return { ...out, ...(c.labels ?? {}) };
+}
+
+/** The rule's criteria for results.json: each in full words once, and its short name for every later mention. */
+function criteriaBlock(atoms: CompiledProgram['atoms'], p: Study['program']): Results['program']['criteria'] {
+  const short = distinctShortNames(atoms.map((a) => criterionShortName(a.condition, p)));
+  return atoms.map((a, i) => ({ atom: a.index, path: a.path, description: describeCondition(a.condition, p), shortName: short[i]!, linear: a.linear, movesWithContinuous: a.dependsOnContinuous }));
 }
 
 export type { Problem };

@@ -13,7 +13,7 @@ export const STUDY_FORMAT_VERSION = 1;
 const STUDY_FIELDS = ['fenceline', 'title', 'description', 'program', 'data', 'columns', 'settings'];
 const DATA_FIELDS = ['path', 'fileName', 'sheet', 'headerRow', 'join', 'decimal', 'dateColumns'];
 const JOIN_FIELDS = ['path', 'fileName', 'sheet', 'key', 'headerRow'];
-const COLUMN_FIELDS = ['id', 'outcomes', 'treatment', 'treatmentPer', 'decision', 'cluster', 'covariates', 'controls'];
+const COLUMN_FIELDS = ['id', 'outcomes', 'treatment', 'treatmentPer', 'decision', 'cluster', 'covariates', 'controls', 'labels'];
 const OUTCOME_FIELDS = ['column', 'label'];
 const SETTINGS_FIELDS = ['deltas', 'draws', 'seed', 'smallCellMax'];
 
@@ -170,6 +170,7 @@ function validateColumns(ps: Problems, v: unknown, data: StudyData | undefined):
   const cluster = text(ps, o, 'cluster', 'columns', 'The cluster column', false);
   const covariates = textList(ps, o, 'covariates', 'columns', 'columns.covariates');
   const controls = textList(ps, o, 'controls', 'columns', 'columns.controls');
+  const labels = columnLabels(ps, o);
   if (!id) return undefined;
   return {
     id,
@@ -180,7 +181,24 @@ function validateColumns(ps: Problems, v: unknown, data: StudyData | undefined):
     ...(cluster ? { cluster } : {}),
     covariates,
     controls,
+    ...(labels ? { labels } : {}),
   };
+}
+
+/** columns.labels: a name for the memo per column, each a non-empty text. */
+function columnLabels(ps: Problems, o: Record<string, unknown>): Record<string, string> | undefined {
+  if (!hasOwn(o, 'labels') || getOwn(o, 'labels') === undefined) return undefined;
+  const v = getOwn(o, 'labels');
+  if (!isPlainObject(v)) {
+    ps.add('columns.labels', `The column labels must be pairs of a column name and the name the memo prints for it, e.g. "labels": { "BILL_BEFORE": "Heating bill the winter before (USD)" }; found ${describeGiven(v)}.`);
+    return undefined;
+  }
+  const out: Record<string, string> = {};
+  for (const [column, label] of Object.entries(v)) {
+    if (typeof label !== 'string' || label.trim() === '') ps.add(`columns.labels.${column}`, `The label of ${quoteText(column)} must be a non-empty text (the name the memo prints for that column); found ${describeGiven(label)}.`);
+    else out[column] = label.trim();
+  }
+  return out;
 }
 
 function validateStudySettings(ps: Problems, v: unknown): StudySettings {
@@ -224,6 +242,13 @@ function crossChecks(ps: Problems, program: Program, columns: StudyColumns): voi
   (columns.controls ?? []).forEach((c, i) => {
     if (outcomeSet.has(norm(c))) ps.add(`columns.controls[${i}]`, `${quoteText(c)} is an outcome and cannot be a control: controls must be measured before the decision.`);
   });
+  const named = new Set([columns.id, columns.decision, columns.cluster, typeof columns.treatment === 'string' ? columns.treatment : undefined, ...(columns.covariates ?? []), ...(columns.controls ?? [])]
+    .filter((c): c is string => typeof c === 'string').map(norm));
+  for (const column of Object.keys(columns.labels ?? {})) {
+    if (inputs.has(norm(column))) ps.add(`columns.labels.${column}`, `${quoteText(column)} is an input to the rule: its name for the memo is the variable's label in the program; remove it from the column labels.`);
+    else if (outcomeSet.has(norm(column))) ps.add(`columns.labels.${column}`, `${quoteText(column)} is an outcome: give its name as the outcome's "label" instead, and remove it from the column labels.`);
+    else if (!named.has(norm(column))) ps.add(`columns.labels.${column}`, `${quoteText(column)} has a label but no role in this study (not the ID, take-up, decision, cluster, a covariate or a control): give it a role or remove its label.`);
+  }
 }
 
 export interface StudyValidationOptions {

@@ -78,7 +78,7 @@ describe('caveats', () => {
     row.standardizedDiff = -0.23; // within 0.25: no flag
     expect(imbalanceCaveat(restate(r))).toBeNull();
     row.standardizedDiff = -0.26;
-    expect(words(imbalanceCaveat(restate(r)))).toContain(`${row.covariate} at delta 0.10: -0.26 standard deviations`);
+    expect(words(imbalanceCaveat(restate(r)))).toContain(`${r.study.columnLabels?.[row.covariate] ?? row.covariate} at delta 0.10: -0.26 standard deviations`);
     // beyond 0.25 at the smallest delta: a smaller delta is no remedy
     r = clean();
     r.balance.find((b) => b.delta === r.settings.deltas[0])!.standardizedDiff = 0.4;

@@ -70,6 +70,7 @@ export function fixtureStudy(overrides: { smallCellMax?: number } = {}) {
       treatment: 'RECEIVED',
       decision: 'OFFERED',
       covariates: ['PRIOR', 'RENTER'],
+      labels: { PRIOR: 'Heating arrears before the season (USD)' },
     },
     settings: { deltas: [0.05, 0.1, 0.2], draws: 400, seed: 3, ...(overrides.smallCellMax !== undefined ? { smallCellMax: overrides.smallCellMax } : {}) },
   };

@@ -48,6 +48,11 @@ describe('study file validation', () => {
     ['a repeated delta', (s: any) => { s.settings.deltas = [0.1, 0.1]; }, 'settings.deltas[1]', /listed twice/],
     ['draws as text', (s: any) => { s.settings.draws = '4000'; }, 'settings.draws', /whole number/],
     ['a suppression threshold out of range', (s: any) => { s.settings.smallCellMax = -1; }, 'settings.smallCellMax', /0 to 1,000/],
+    ['column labels that are not pairs', (s: any) => { s.columns.labels = ['RENTER']; }, 'columns.labels', /pairs of a column name and the name the memo prints/],
+    ['an empty column label', (s: any) => { s.columns.labels = { RENTER: ' ' }; }, 'columns.labels.RENTER', /non-empty text/],
+    ['a label for a rule input', (s: any) => { s.columns.labels = { HH_INCOME: 'Income' }; }, 'columns.labels.HH_INCOME', /input to the rule/],
+    ['a label for an outcome', (s: any) => { s.columns.labels = { ARREARS_MARCH: 'Arrears' }; }, 'columns.labels.ARREARS_MARCH', /outcome's "label"/],
+    ['a label for a column with no role', (s: any) => { s.columns.labels = { NOTES: 'Case notes' }; }, 'columns.labels.NOTES', /no role in this study/],
     ['a lottery without the recorded decision', (s: any) => { s.program.offer.ifEligible = 0.6; delete s.columns.decision; }, 'columns.decision', /lottery/],
     ['a problem inside the program', (s: any) => { s.program.rule.all[0].op = '=<'; }, 'program.rule.all[0].op', /<=/],
   ])('refuses %s, naming where and what to do', (_name, mutate, path, message) => {

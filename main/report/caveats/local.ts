@@ -6,13 +6,14 @@
 
 import type { Results } from '../../contract/results.ts';
 import { num, stateRun, text } from '../model/memo-source.ts';
-import { DELTA, effectOf, unitWords, upperFirst } from '../model/memo-format.ts';
+import { DELTA, effectOf, limitName, unitWords } from '../model/memo-format.ts';
 import type { Inline } from '../model/document.ts';
 import { para, type Caveat, type CaveatContext } from './types.ts';
 
 export interface SupportedRange {
   path: string;
   description: string;
+  group?: string;
   /** Scenario index of the largest supported lowering / raising of this limit (null: none). */
   down: number | null;
   up: number | null;
@@ -26,7 +27,7 @@ export function supportedRange(r: Results): SupportedRange[] {
   const byLimit = new Map<string, SupportedRange>();
   const size = (i: number | null) => (i === null ? -1 : Math.abs(scenarios[i]!.relativeChange));
   scenarios.forEach((s, i) => {
-    const e = byLimit.get(s.path) ?? { path: s.path, description: s.description, down: null, up: null, firstUnsupported: null };
+    const e = byLimit.get(s.path) ?? { path: s.path, description: s.description, ...(s.group !== undefined ? { group: s.group } : {}), down: null, up: null, firstUnsupported: null };
     if (s.valid) {
       if (s.relativeChange < 0 && size(i) > size(e.down)) e.down = i;
       if (s.relativeChange > 0 && size(i) > size(e.up)) e.up = i;
@@ -79,7 +80,7 @@ export function localEstimateCaveat(r: Results, ctx: CaveatContext): Caveat | nu
       body.push(para(...items));
     }
     for (const x of same ? [] : supported) {
-      const items: Inline[] = [text(`${upperFirst(x.description)}: `)];
+      const items: Inline[] = [text(`${limitName(r, x, unitWords(r).one)}: `)];
       const ways: Inline[][] = [];
       if (x.down !== null) ways.push([text('lowering it by up to '), sizeRun(r, x.down)]);
       if (x.up !== null) ways.push([text('raising it by up to '), sizeRun(r, x.up)]);

@@ -8,6 +8,7 @@ import { COUNT, DELTA, effectOf, upperFirst } from './memo-format.ts';
 import { shareableText } from './memo-scrub.ts';
 import { constNum, num, numCell, stateCell, text, textCell } from './memo-source.ts';
 import { MEMO_CONSTANTS } from './memo-constants.ts';
+import { whoPhrase } from './memo-finding.ts';
 
 /** Published sources of the methods the memo reports (docs/method.md). */
 export const METHOD_SOURCES: readonly string[] = [
@@ -28,23 +29,61 @@ export const METHOD_SOURCES: readonly string[] = [
   'Imbens, G. W. and Angrist, J. D. (1994). Identification and estimation of local average treatment effects. Econometrica 62(2):467–475.',
   'Anderson, T. W. and Rubin, H. (1949). Estimation of the parameters of a single equation in a complete system of stochastic equations. Annals of Mathematical Statistics 20(1):46–63.',
   'Cameron, A. C. and Miller, D. L. (2015). A practitioner’s guide to cluster-robust inference. Journal of Human Resources 50(2):317–372.',
+  'Rubin, D. B. (2001). Using propensity scores to help design observational studies: application to the tobacco litigation. Health Services and Outcomes Research Methodology 2(3–4):169–188.',
+  'Cameron, A. C., Gelbach, J. B. and Miller, D. L. (2008). Bootstrap-based improvements for inference with clustered errors. Review of Economics and Statistics 90(3):414–427.',
+  'Davidson, R. and MacKinnon, J. G. (2010). Wild bootstrap tests for IV regression. Journal of Business and Economic Statistics 28(1):128–144.',
+  'Webb, M. D. (2023). Reworking wild bootstrap-based inference for clustered errors. Canadian Journal of Economics 56(3):839–858.',
+  'Angrist, J. D. and Pischke, J.-S. (2009). Mostly Harmless Econometrics: An Empiricist’s Companion. Princeton University Press.',
   'Lee, D. S. and Card, D. (2008). Regression discontinuity inference with specification error. Journal of Econometrics 142(2):655–674.',
 ];
 
 function methodBlocks(ctx: MemoContext): Section['blocks'] {
-  const { r } = ctx;
-  const se = r.settings.variance === 'CR1'
-    ? `cluster-robust standard errors (CR1) with ${r.settings.clusterColumn ?? 'the cluster column'} as the cluster`
-    : 'heteroskedasticity-robust standard errors (HC1; MacKinnon and White 1985)';
   return [
-    { kind: 'paragraph', runs: [text('Design. ', 'bold'), text('For each unit the approximate propensity score (APS) p(x; δ) is the average of the rule’s offer probability A over the Euclidean ball of radius δ around the unit’s continuous inputs, in scaled units (each input divided by its scale), the discrete inputs held fixed (Narita and Yata 2021). Fenceline computes it exactly where the geometry allows (one straddled linear criterion, or parallel ones: the fraction of the ball beyond a plane at distance t·δ is ½·I₁₋ₜ²((d+1)/2, ½), Li 2011) and otherwise by randomized quasi-Monte Carlo points in the ball, with a simulation standard error from independent replicates.')] },
-    { kind: 'paragraph', runs: [text('Estimate. ', 'bold'), text(`In the units with 0 < APS < 1 (strictly), two-stage least squares of the outcome Y on receipt D, instrumented by the offer Z, controlling for the APS: first stage D = γ₀ + γ₁·Z + γ₂·APS + ν, second stage Y = β₀ + β₁·D + β₂·APS + ε; the effect is β₁ = ρ₁/γ₁, ρ₁ the offer’s coefficient in the reduced form of Y. Standard errors: ${se}. Intervals are 95% Wald intervals.`)] },
-    { kind: 'paragraph', runs: [text('Weak instruments. ', 'bold'), text('The first-stage F is the squared robust t-statistic of γ₁ (rule of thumb: weak below ten, Staiger and Stock 1997). The tF interval widens the critical value as F falls (Lee, McCrary, Moreira and Porter 2022); the Anderson–Rubin set inverts the robust test of the reduced form in Y − β·D and may be unbounded (Mikusheva 2010).')] },
-    { kind: 'paragraph', runs: [text('Checks. ', 'bold'), text('Balance: each covariate regressed on Z and the APS near the edge; the standardized difference divides the coefficient by √((s₁² + s₀²)/2) (Austin 2009); the joint test is a robust Wald test of all coefficients. Density: McCrary’s (2008) test of a jump in the density of value − limit at zero, log difference θ = ln f⁺ − ln f⁻. Delta sensitivity: pairs of deltas whose 95% intervals do not overlap (Schenker and Gentleman 2001). Several outcomes: Holm (1979) adjusted p-values. Compliers: Abadie’s (2003) κ-weighted means with the APS as the offer probability. Threshold changes: the offer change S times ρ₁ (outcome total) and γ₁ (receipt), supported only while every unit switched has 0 < APS < 1.')] },
+    { kind: 'paragraph', runs: [text('Design. ', 'bold'), text(designSentence(ctx.r))] },
+    { kind: 'paragraph', runs: [text('Estimate. ', 'bold'), text(`In the units with 0 < APS < 1 (strictly), two-stage least squares of the outcome Y on receipt D, instrumented by the offer Z, controlling for the APS: first stage D = γ₀ + γ₁·Z + γ₂·APS + ν, second stage Y = β₀ + β₁·D + β₂·APS + ε; the effect is β₁ = ρ₁/γ₁, ρ₁ the offer’s coefficient in the reduced form of Y. ${inferenceSentence(ctx.r)}`)] },
+    { kind: 'paragraph', runs: [text('Weak instruments. ', 'bold'), text('The first-stage F is the squared robust t-statistic of γ₁ (rule of thumb: weak below ten, Staiger and Stock 1997). The tF interval widens the critical value as F falls and is the one to read below F = 104.7 (Lee, McCrary, Moreira and Porter 2022); the Anderson–Rubin set inverts the robust test of the reduced form in Y − β·D and may be unbounded (Mikusheva 2010). An effect is called distinguishable from no effect only when every interval that applies excludes zero.')] },
+    { kind: 'paragraph', runs: [text('Checks. ', 'bold'), text(`Balance: each covariate regressed on Z and the APS in the units compared; the standardized difference divides the coefficient by √((s₁² + s₀²)/2) (Austin 2009) and is flagged beyond 0.25 whatever its p-value (Rubin 2001); the p-values of all per-characteristic tests at every delta are adjusted together (Holm 1979), and the joint test is a robust Wald test of all coefficients at each delta. Density: McCrary’s (2008) test of a jump in the density of value − limit at zero, log difference θ = ln f⁺ − ln f⁻; p below 0.05 is a sign of sorting, p from 0.05 to 0.10 a weak sign. Delta sensitivity: the estimates at the several deltas are shown side by side and not tested against each other, because the smaller samples are part of the larger ones (overlap of intervals would prove little; Schenker and Gentleman 2001). Several outcomes: Holm (1979) adjusted p-values. ${complierSentence(ctx.r)} Threshold changes: the offer change S times ρ₁ (outcome total) and γ₁ (receipt), supported only while every unit switched has 0 < APS < 1.`)] },
     { kind: 'paragraph', runs: [text('Figures. ', 'bold'), text('The distance to the nearest edge is, for each unit, the smallest distance in scaled units to the plane of a criterion whose reversal alone would reverse the verdict, counted negative on the not-eligible side (docs/memo.md). Figures use per-unit data but print no number; counts in them are suppressed like every table.')] },
     { kind: 'paragraph', runs: estimandRuns(ctx) },
     { kind: 'list', items: METHOD_SOURCES.map((s) => [text(s)]) },
   ];
+}
+
+/** How the APS was computed in this run, from its design counts. */
+function designSentence(r: MemoContext['r']): string {
+  const corners = r.design.byDelta.some((d) => d.cornerExact > 0);
+  const simulated = r.design.byDelta.some((d) => d.simulated > 0);
+  const refined = r.design.byDelta.some((d) => d.refined > 0);
+  const parts = [
+    'For each unit the approximate propensity score (APS) p(x; δ) is the average of the rule’s offer probability A over the Euclidean ball of radius δ around the unit’s continuous inputs, in scaled units (each input divided by its scale), the discrete inputs held fixed (Narita and Yata 2021).',
+    'Fenceline computes it exactly where one linear criterion, or parallel ones, cross the ball (the fraction of the ball beyond a plane at distance t·δ is ½·I₁₋ₜ²((d+1)/2, ½), Li 2011)' +
+      (corners ? ', and where two or three linear criteria cross it (an integral of the ball’s marginal density over the region the criteria cut out, to a stated error)' : '') + '.',
+  ];
+  if (simulated) {
+    parts.push('Elsewhere it averages the offer over randomized quasi-Monte Carlo points in the ball, with a simulation standard error from independent replicates' +
+      (refined ? '; a unit whose ball crosses the edge but whose simulated value came out exactly 0 or 1 was given more points' : '') + '.');
+  } else {
+    parts.push('In this run no unit needed simulation.');
+  }
+  return parts.join(' ');
+}
+
+/** Standard errors and the reference distribution of this run's intervals. */
+function inferenceSentence(r: MemoContext['r']): string {
+  if (r.settings.variance !== 'CR1') return 'Standard errors: heteroskedasticity-robust (HC1; MacKinnon and White 1985). Intervals are 95% Wald intervals with normal critical values.';
+  const few = r.outcomes.some((o) => o.byDelta.some((b) => b.wildBootstrap));
+  return 'Standard errors: cluster-robust (CR1; Cameron and Miller 2015), clustered by the study’s cluster column. Intervals and tests use critical values of Student’s t with G − 1 degrees of freedom, G the number of clusters in the sample (common practice; Cameron, Gelbach and Miller 2008).' +
+    (few ? ' With fewer than 50 clusters the headline delta also has a wild cluster bootstrap: the restricted efficient wild bootstrap for IV (Davidson and MacKinnon 2010) with Rademacher weights, or Webb’s six-point weights below 12 clusters (Webb 2023); its p-value and interval come from inverting the bootstrap test, with a fixed seed.' : '');
+}
+
+/** How the complier profile was estimated in this run. */
+function complierSentence(r: MemoContext['r']): string {
+  const kappa = r.compliers.some((c) => c.method === 'kappa');
+  const tsls = r.compliers.some((c) => c.method === '2SLS');
+  const parts: string[] = [];
+  if (tsls) parts.push('Compliers: their share is the first stage γ₁ of the headline specification; the compliers’ mean of a characteristic W is the coefficient on D in the same 2SLS with W·D as the outcome (Angrist and Pischke 2009; Abadie 2003 for the identity), with the same weighting as the effect.');
+  if (kappa) parts.push('Where the offer probability is known and strictly between 0 and 1 (a stated lottery), the complier profile uses Abadie’s (2003) κ weights with that probability.');
+  return parts.join(' ');
 }
 
 /** The estimand in the memo's own words: the analyst's column names stay in results.json. */
@@ -52,7 +91,7 @@ function estimandRuns(ctx: MemoContext): Inline[] {
   const { r } = ctx;
   const runs: Inline[] = [text('Estimand. ', 'bold')];
   if (r.estimand.kind === 'treatment') {
-    runs.push(text(`The estimate is the effect of ${effectOf(r)} for the ${ctx.words.many} near the edge of the rule who receive it when offered and not otherwise (compliers)`));
+    runs.push(text(`The estimate is the effect of ${effectOf(r)} for the ${ctx.words.many} ${whoPhrase(ctx)} who receive it when offered and not otherwise (compliers)`));
     if (r.estimand.treatmentPer !== 1) runs.push(text(', per '), num(r, 'estimand.treatmentPer', { style: 'decimal', decimals: 0 }), text(' of the benefit received'));
     runs.push(text('. '));
   } else {
@@ -86,7 +125,7 @@ function settingsRows(ctx: MemoContext): TableRow[] {
     { cells: [textCell('Independent replicates'), numCell(r, 'settings.replicates', COUNT)] },
     { cells: [textCell('Seed'), numCell(r, 'settings.seed', COUNT)] },
     { cells: [textCell('Small-cell threshold (counts from one up to it are hidden)'), numCell(r, 'settings.smallCellMax', COUNT)] },
-    { cells: [textCell('Standard errors'), textCell(s.variance === 'CR1' ? `CR1, clustered by ${s.clusterColumn ?? ''}` : 'HC1')] },
+    { cells: [textCell('Standard errors'), textCell(s.variance === 'CR1' ? `CR1, clusters: ${s.clusterColumn ?? ''}` : 'HC1')] },
     { cells: [textCell('Bound on a simulated APS’s standard deviation'), numCell(r, 'design.mcSdBound', { style: 'decimal', decimals: 4 })] },
   );
   return rows;
@@ -159,7 +198,7 @@ export function glossarySection(ctx: MemoContext): Section {
         e('Delta', `The radius of the small neighbourhood around each ${one}’s inputs, in scaled units. Larger deltas count more ${many} as near the edge.`),
         e('Scaled units', 'Each continuous input divided by its scale (listed in the appendix), so that distances along different inputs can be compared.'),
         e('Offer probability (approximate propensity score, APS)', `The chance that the rule would offer the benefit to a ${one} whose inputs lay anywhere in the small neighbourhood around its own: the average of the rule’s offer over that neighbourhood (Narita and Yata 2021).`),
-        e('Compliers', `${upperFirst(many)} who take the benefit when offered and would not take it otherwise. With an offer as the instrument, the estimate is the average effect for the compliers near the edge (Imbens and Angrist 1994).`),
+        e('Compliers', `${upperFirst(many)} who take the benefit when offered and would not take it otherwise. With an offer as the instrument, the estimate is the average effect for the compliers among the ${many} ${whoPhrase(ctx)} (Imbens and Angrist 1994).`),
         e('First stage', 'How much an offer raises the share receiving the benefit.'),
         { term: 'F statistic', definition: [text('How clearly the first stage stands out from noise: the square of its t-statistic. Below '), constNum('WEAK_F', MEMO_CONSTANTS.WEAK_F, COUNT), text(' the offer is called a weak instrument and the usual interval can be misleading (Staiger and Stock 1997).')] },
         e('tF interval, Anderson–Rubin set', 'Intervals for the effect that stay valid when the first stage is weak: the tF interval widens the usual one as F falls (Lee, McCrary, Moreira and Porter 2022); the Anderson–Rubin set tests each possible effect directly and may be unbounded (Anderson and Rubin 1949).'),

@@ -5,7 +5,7 @@
 import type { Figure } from './document.ts';
 import { mapSpec } from './map-spec.ts';
 import type { MemoContext } from './memo-context.ts';
-import { criterionText, outcomeName, lowerFirst } from './memo-format.ts';
+import { columnLabel, criterionShort, outcomeName, lowerFirst } from './memo-format.ts';
 import { MEMO_CONSTANTS } from './memo-constants.ts';
 
 const DISTANCE_AXIS = { label: 'Distance to the nearest edge of the rule (below 0: not eligible)', unit: 'scaled units' };
@@ -89,7 +89,7 @@ export function densityFigure(ctx: MemoContext, k: number): Figure | null {
       bins: d.bins,
       yLabel: `${many[0]!.toUpperCase()}${many.slice(1)} per bin`,
     },
-    caption: `How many ${many} fall just below and just above the limit of the criterion “${criterionText(ctx.r, check.atom, ctx.words.one)}” (value minus limit; bins with few ${many} are left blank).`,
+    caption: `How many ${many} fall just below and just above the limit of the criterion “${criterionShort(ctx.r, check.atom, ctx.words.one)}” (value minus limit; bins with few ${many} are left blank).`,
     alt: `A histogram of value minus limit around zero, one bar per narrow band.`,
   };
 }
@@ -110,7 +110,7 @@ export function balanceFigure(ctx: MemoContext): Figure | null {
   return {
     kind: 'figure',
     id: 'fig-balance',
-    chart: { kind: 'balance', covariates, series, band: MEMO_CONSTANTS.BALANCE_BAND },
+    chart: { kind: 'balance', covariates: covariates.map((c) => columnLabel(r, c)), series, band: MEMO_CONSTANTS.BALANCE_BAND },
     caption: 'Differences between offered and not-offered units in characteristics fixed before the offer, in standard deviations; the grey band marks differences usually treated as negligible.',
     alt: 'Points per characteristic and comparison; points inside the grey band around zero show no meaningful difference.',
   };

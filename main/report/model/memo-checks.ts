@@ -6,7 +6,7 @@ import type { Cell, Inline, Section, TableRow } from './document.ts';
 import type { MemoContext } from './memo-context.ts';
 import { balanceFigure, deltaFigure, densityFigure, distanceFigure } from './memo-charts.ts';
 import { MEMO_CONSTANTS } from './memo-constants.ts';
-import { DELTA, F_STAT, PVALUE, STD_DIFF, criterionText, effectFormat, outcomeName, lowerFirst } from './memo-format.ts';
+import { DELTA, F_STAT, PVALUE, STD_DIFF, columnLabel, criterionShort, effectFormat, outcomeName, lowerFirst } from './memo-format.ts';
 import { constNum, num, numCell, numCellOr, text, textCell } from './memo-source.ts';
 import { deltaList } from './memo-deltas.ts';
 import { balanceVerdictRuns, manipulationVerdictRuns } from './memo-verdicts.ts';
@@ -105,7 +105,7 @@ function balanceSection(ctx: MemoContext): Section | null {
         { header: 'p-value', align: 'right', format: PVALUE },
       ],
       rows: r.balance.map((b, k) => ({ b, k })).sort((x, y) => (x.b.covariate === y.b.covariate ? x.b.delta - y.b.delta : r.balance.findIndex((z) => z.covariate === x.b.covariate) - r.balance.findIndex((z) => z.covariate === y.b.covariate))).map(({ b, k }): TableRow => ({ cells: [
-        textCell(b.covariate), numCell(r, `balance[${k}].delta`),
+        textCell(columnLabel(r, b.covariate)), numCell(r, `balance[${k}].delta`),
         numCellOr(r, `balance[${k}].diff`, 'not estimable'), numCellOr(r, `balance[${k}].standardizedDiff`, ''), numCellOr(r, `balance[${k}].p`, ''),
       ] })),
     },
@@ -150,7 +150,7 @@ function manipulationSection(ctx: MemoContext): Section {
         { header: 'Verdict', align: 'left' },
       ],
       rows: r.density.map((d, k): TableRow => ({ cells: [
-        textCell(criterionText(r, d.atom, ctx.words.one)),
+        textCell(criterionShort(r, d.atom, ctx.words.one)),
         numCellOr(r, `density[${k}].logDifference`, 'not estimable'), numCellOr(r, `density[${k}].p`, ''),
         textCell(r.findings.manipulation.limits[k]?.verdict ?? 'did not run'),
       ] })),

@@ -70,3 +70,46 @@ export function criterionText(r: Results, atom: number, one: string): string {
   const c = r.program.criteria.find((x) => x.atom === atom);
   return c ? upperFirst(c.description.replace(/^its /, `the ${one}'s `)) : `Criterion ${atom + 1}`;
 }
+
+/** A criterion's short name (results.json `program.criteria[].shortName`): how the memo refers to
+ * it after the rule section has stated it in full. Results written before short names fall back
+ * to the full words. */
+export function criterionShort(r: Results, atom: number, one: string): string {
+  const c = r.program.criteria.find((x) => x.atom === atom);
+  return c?.shortName ?? criterionText(r, atom, one);
+}
+
+/** A limit of the rule by the JSON path of its value (program.rule.all[0].limit, …limit.table.2):
+ * "the limit of “income ≤ 30,000”", with the group a table limit applies to. */
+export function limitName(r: Results, limit: { path: string; description: string; group?: string }, one: string): string {
+  const c = r.program.criteria.find((x) => limit.path === `${x.path}.limit` || limit.path.startsWith(`${x.path}.limit.`));
+  if (!c) return upperFirst(limit.description);
+  return `Limit of “${criterionShort(r, c.atom, one)}”${limit.group ? ` for ${limit.group}` : ''}`;
+}
+
+/** The name the memo prints for a data column (results.study.columnLabels), else the column's own name. */
+export function columnLabel(r: Results, column: string): string {
+  return r.study.columnLabels?.[column] ?? column;
+}
+
+const escapeRegExp = (s: string): string => s.replace(/[.*+?^${}()|[\]\\]/g, '\\$&');
+
+/** A message from reading the data with every column name it mentions preceded by the memo's name
+ * for that column: "REPAIR_COST is not a number" → "Estimated repair cost (REPAIR_COST) is not a number". */
+export function withColumnLabels(r: Results, message: string): string {
+  const labels = Object.entries(r.study.columnLabels ?? {}).filter(([column, label]) => label && label !== column);
+  if (!labels.length) return message;
+  labels.sort((a, b) => b[0].length - a[0].length);
+  const byColumn = new Map(labels);
+  const pattern = new RegExp(`(?<![\\w])(${labels.map(([c]) => escapeRegExp(c)).join('|')})(?![\\w])`, 'g');
+  const out = message.replace(pattern, (column) => `${byColumn.get(column)!} (${column})`);
+  return /^[a-z]/.test(message) ? out : upperFirst(out);
+}
+
+/** "within each district (DISTRICT)": the clusters of CR1 standard errors, in words. */
+export function clusterWords(r: Results): string {
+  const column = r.settings.clusterColumn;
+  if (!column) return 'within each cluster';
+  const label = columnLabel(r, column);
+  return label === column ? `within each cluster (${column})` : `within each ${lowerFirst(label)} (${column})`;
+}

@@ -4,7 +4,7 @@
 import type { Caveat } from '../caveats/types.ts';
 import type { Cell, NumberFormat, Section, TableRow } from './document.ts';
 import type { MemoContext } from './memo-context.ts';
-import { COUNT, effectFormat, outcomeName, upperFirst, lowerFirst } from './memo-format.ts';
+import { COUNT, effectFormat, limitName, outcomeName, lowerFirst } from './memo-format.ts';
 import { num, numCell, stateCell, text, textCell } from './memo-source.ts';
 
 function projectionTable(ctx: MemoContext, i: number): Section['blocks'][number] | null {
@@ -22,7 +22,7 @@ function projectionTable(ctx: MemoContext, i: number): Section['blocks'][number]
     const hide = (path: string, f?: NumberFormat): Cell =>
       sw.shown ? numCell(r, path, f) : { kind: 'suppressed', reason: 'derived' };
     const cells: Cell[] = [
-      textCell(upperFirst(s.description)),
+      textCell(limitName(r, s, ctx.words.one)),
       numCell(r, `${base}.relativeChange`),
       stateCell(sw, `${base}.switchers`),
       stateCell(ledger.get(`${base}.switchersOutsideBand`), `${base}.switchersOutsideBand`),

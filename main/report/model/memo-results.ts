@@ -5,7 +5,7 @@
 import type { Cell, Inline, Section, TableRow } from './document.ts';
 import type { MemoContext } from './memo-context.ts';
 import { distanceFigure } from './memo-charts.ts';
-import { COUNT, DELTA, PVALUE, effectFormat, effectOf, outcomeName, upperFirst, lowerFirst } from './memo-format.ts';
+import { COUNT, DELTA, PVALUE, clusterWords, effectFormat, effectOf, outcomeName, upperFirst, lowerFirst } from './memo-format.ts';
 import { num, numCell, stateCell, stateRun, text, textCell } from './memo-source.ts';
 
 function outcomeSection(ctx: MemoContext, i: number): Section {
@@ -46,7 +46,7 @@ function outcomeSection(ctx: MemoContext, i: number): Section {
       { header: 'p-value', align: 'right', format: PVALUE },
     ],
     rows,
-    notes: [[text(`Two-stage least squares near the edge, controlling for the offer probability; ${r.settings.variance === 'CR1' ? `standard errors robust to correlation within ${r.settings.clusterColumn ?? 'clusters'} (CR1)` : 'standard errors robust to unequal variances (HC1)'}. See the appendix.`)]],
+    notes: [[text(`Two-stage least squares near the edge, controlling for the offer probability; ${r.settings.variance === 'CR1' ? `standard errors robust to correlation ${clusterWords(r)} (CR1)` : 'standard errors robust to unequal variances (HC1)'}. See the appendix.`)]],
   }];
 
   const cmp: Inline[] = [];

@@ -4,7 +4,7 @@
 
 import type { Cell, Inline, Section, Table, TableRow } from './document.ts';
 import type { MemoContext } from './memo-context.ts';
-import { COUNT, PERCENT, outcomeName, upperFirst, lowerFirst } from './memo-format.ts';
+import { COUNT, PERCENT, criterionShort, outcomeName, upperFirst, lowerFirst, withColumnLabels } from './memo-format.ts';
 import { shareableText } from './memo-scrub.ts';
 import { numberAt, stateCell, stateRun, text, textCell } from './memo-source.ts';
 
@@ -13,12 +13,11 @@ export function ruleSection(ctx: MemoContext): Section {
   const p = r.program;
   const blocks: Section['blocks'] = [
     { kind: 'paragraph', runs: [text(`${p.name}. `, 'bold'), text(p.wording)] },
-    { kind: 'paragraph', runs: [text(r.findings.design.kind === 'lottery'
-      ? 'The rule is made of these criteria; the analysis compares ' + ctx.words.many + ' whose offer was left to the draw, not ' + ctx.words.many + ' near a limit:'
+    { kind: 'paragraph', runs: [text(`${r.findings.design.kind === 'lottery'
+      ? `The analysis compares ${ctx.words.many} whose offer was left to the draw, not ${ctx.words.many} near a limit.`
       : r.findings.design.kind === 'edge and lottery'
-        ? 'The rule is made of these criteria; the analysis looks at ' + ctx.words.many + ' near the point where one of them changes the verdict, and at ' + ctx.words.many + ' whose offer was left to the draw:'
-        : 'The rule is made of these criteria; the analysis looks at ' + ctx.words.many + ' near the point where one of them changes the verdict:')] },
-    { kind: 'list', items: p.criteria.map((c) => [text(upperFirst(c.description.replace(/^its /, `the ${ctx.words.one}'s `)))]) },
+        ? `The analysis looks at ${ctx.words.many} near the point where one of the criteria changes the verdict, and at ${ctx.words.many} whose offer was left to the draw.`
+        : `The analysis looks at ${ctx.words.many} near the point where one of the criteria changes the verdict.`} ${shortNamesSentence(ctx)}`)] },
   ];
   const offer: Inline[] = [text(p.offerWording + ' ')];
   offer.push(text(p.offerKind === 'deterministic'
@@ -32,12 +31,20 @@ export function ruleSection(ctx: MemoContext): Section {
   };
 }
 
+/** The criteria are stated in full once, in the rule above; later sections use these short names. */
+function shortNamesSentence(ctx: MemoContext): string {
+  const names = ctx.r.program.criteria.map((c) => `“${criterionShort(ctx.r, c.atom, ctx.words.one)}”`);
+  if (names.length === 0) return '';
+  if (names.length === 1) return `Later sections call its one criterion ${names[0]}.`;
+  return `Later sections call its criteria, in the order stated, ${names.slice(0, -1).join(', ')} and ${names[names.length - 1]}.`;
+}
+
 function rowsTable(ctx: MemoContext): Table {
   const { r, ledger } = ctx;
   const s = r.study;
   const rows: TableRow[] = [
     { cells: [textCell('Rows read'), stateCell(ledger.get('study.rowsRead'), 'study.rowsRead')] },
-    ...s.rowsExcluded.map((e, i): TableRow => ({ cells: [textCell(`Excluded: ${e.reason}`), stateCell(ledger.get(`study.rowsExcluded[${i}].count`), `study.rowsExcluded[${i}].count`)] })),
+    ...s.rowsExcluded.map((e, i): TableRow => ({ cells: [textCell(`Excluded: ${withColumnLabels(r, e.reason)}`), stateCell(ledger.get(`study.rowsExcluded[${i}].count`), `study.rowsExcluded[${i}].count`)] })),
     { emphasis: 'total', cells: [textCell('Rows used'), stateCell(ledger.get('study.rowsUsed'), 'study.rowsUsed')] },
   ];
   return {
@@ -118,7 +125,7 @@ export function dataSection(ctx: MemoContext): Section {
   }
   if (s.notes.length) {
     blocks.push({ kind: 'paragraph', runs: [text('Notes from reading the file:')] });
-    blocks.push({ kind: 'list', items: s.notes.map((n) => [text(shareableText(n.message, ledger.threshold, [ctx.words.one, many]))]) });
+    blocks.push({ kind: 'list', items: s.notes.map((n) => [text(shareableText(withColumnLabels(r, n.message), ledger.threshold, [ctx.words.one, many]))]) });
   }
   r.outcomes.forEach((o, i) => {
     if (o.missing > 0) {

@@ -5,7 +5,7 @@ import type { Results } from '../../contract/results.ts';
 import type { Inline } from './document.ts';
 import { MEMO_CONSTANTS } from './memo-constants.ts';
 import { deltaList } from './memo-deltas.ts';
-import { STD_DIFF, criterionText, unitWords } from './memo-format.ts';
+import { STD_DIFF, columnLabel, criterionShort, unitWords } from './memo-format.ts';
 import { constNum, num, pRun, text } from './memo-source.ts';
 
 const ALPHA = () => constNum('ALPHA', MEMO_CONSTANTS.ALPHA, { style: 'decimal', decimals: 2 });
@@ -27,7 +27,7 @@ export function balanceFlagRuns(r: Results, which: 'large difference' | 'adjuste
     if (!f.why.includes(which)) return;
     if (runs.length) runs.push(text('; '));
     const k = r.balance.findIndex((b) => b.covariate === f.covariate && b.delta === f.delta);
-    runs.push(text(`${f.covariate} at delta `), ...deltaList({ r }, [f.delta]), text(': '));
+    runs.push(text(`${columnLabel(r, f.covariate)} at delta `), ...deltaList({ r }, [f.delta]), text(': '));
     if (which === 'large difference' && k >= 0) runs.push(num(r, `balance[${k}].standardizedDiff`, STD_DIFF), text(' standard deviations'));
     else if (which === 'adjusted p') runs.push(text('adjusted '), ...pRun(r, `findings.balance.flagged[${j}].adjustedP`));
     else if (k >= 0) runs.push(...pRun(r, `balance[${k}].p`), text(', adjusted '), ...pRun(r, `findings.balance.flagged[${j}].adjustedP`));
@@ -77,7 +77,7 @@ export function manipulationVerdictRuns(r: Results): Inline[] {
   const at = (v: string) => m.limits.map((l, k) => ({ l, k })).filter(({ l }) => l.verdict === v);
   const list = (items: Array<{ l: { atom: number }; k: number }>) => {
     const out: Inline[] = [];
-    items.forEach(({ l, k }, i) => { if (i) out.push(text('; ')); out.push(text(`“${criterionText(r, l.atom, one)}”, `), ...pRun(r, `density[${k}].p`)); });
+    items.forEach(({ l, k }, i) => { if (i) out.push(text('; ')); out.push(text(`“${criterionShort(r, l.atom, one)}”, `), ...pRun(r, `density[${k}].p`)); });
     return out;
   };
   const jumps = at('jump');

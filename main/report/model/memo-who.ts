@@ -6,19 +6,23 @@
 import type { Cell, Inline, Section, TableRow } from './document.ts';
 import type { MemoContext } from './memo-context.ts';
 import { boundaryMapFigure } from './memo-charts.ts';
-import { COUNT, DELTA, PERCENT, criterionText, upperFirst } from './memo-format.ts';
+import { COUNT, DELTA, PERCENT, columnLabel, criterionShort, upperFirst } from './memo-format.ts';
 import { num, numCellOr, stateCell, stateRun, text, textCell } from './memo-source.ts';
 import { article } from '../../rules/wording.ts';
 
 const MEAN = { style: 'decimal', decimals: 2 } as const;
 
-const criterion = (ctx: MemoContext, atom: number) => criterionText(ctx.r, atom, ctx.words.one);
+const criterion = (ctx: MemoContext, atom: number) => criterionShort(ctx.r, atom, ctx.words.one);
 
 /** What the composition means for whom the estimate speaks, from the design the findings state. */
-function designWords(ctx: MemoContext): Inline[] {
+function designWords(ctx: MemoContext, topShare: number): Inline[] {
   const { many } = ctx.words;
   const d = ctx.r.findings.design;
-  if (d.kind === 'edge') return [text(`The estimate therefore speaks mostly for ${many} near that limit.`)];
+  if (d.kind === 'edge') {
+    return [text(topShare > 0.5
+      ? `The estimate therefore speaks mostly for ${many} near that limit.`
+      : `No one limit holds most of them: the estimate speaks for ${many} near each of the limits in the table, in these proportions.`)];
+  }
   const k = ctx.headline;
   const share = ctx.ledger.share(d.lotteryShare, `design.composition[${k}].lotteryOnly`, `design.byDelta[${k}].boundary`);
   if (d.kind === 'lottery') return [text(`But every one of them is there because the offer was left to the draw, not because a limit is near: the estimate speaks for ${many} whose offer was drawn, wherever their inputs lie within the rule.`)];
@@ -75,7 +79,7 @@ export function whoSection(ctx: MemoContext): Section {
       blocks.push({ kind: 'paragraph', runs: [
         text(`At the headline delta, the criterion with the most ${many} near it is “${criterion(ctx, top.a.atom)}”: `),
         stateRun(ledger.share(top.a.share, `${base}.straddling`, `design.byDelta[${k}].boundary`), `${base}.share`, PERCENT),
-        text(` of the ${many} near the edge. `), ...designWords(ctx),
+        text(` of the ${many} near the edge. `), ...designWords(ctx, top.a.share),
       ] });
     }
     blocks.push({
@@ -105,7 +109,7 @@ export function whoSection(ctx: MemoContext): Section {
     const rows: TableRow[] = profile.rows.map((row, j): TableRow => {
       const base = `compliers[${prof}].rows[${j}]`;
       const cells: Cell[] = [
-        textCell(row.covariate),
+        textCell(columnLabel(r, row.covariate)),
         numCellOr(r, `${base}.all`, 'not available', MEAN),
         nearShown ? numCellOr(r, `${base}.boundary`, 'not available', MEAN) : { kind: 'suppressed', reason: 'derived' },
         nearShown ? numCellOr(r, `${base}.compliers.coef`, 'not available', MEAN) : { kind: 'suppressed', reason: 'derived' },
