@@ -340,6 +340,7 @@ function dedupe(ws: Warning[]): Warning[] {
 function columnLabels(study: Study): Record<string, string> {
   const c = study.columns;
   const out: Record<string, string> = { [c.id]: 'ID' };
+  for (const j of study.data.join ?? []) out[j.key] = 'ID';
   if (typeof c.treatment === 'string') out[c.treatment] = 'take-up';
   if (c.decision) out[c.decision] = 'recorded decision';
   if (c.cluster) out[c.cluster] = 'cluster';

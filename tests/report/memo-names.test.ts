@@ -10,13 +10,15 @@ import { runFixture } from './memo-fixture.ts';
 import { walk, type Walked } from './memo-walk.ts';
 
 let results: Results;
+let figureDataOf: ReturnType<typeof figureData>;
 let walked: Walked;
 const all = () => walked.texts.map((t) => t.text).join('\n');
 
 beforeAll(async () => {
   const run = await runFixture();
   results = JSON.parse(JSON.stringify(run.results));
-  walked = walk(buildMemo(results, figureData(run), { createdAt: '2025-03-12T09:30:00Z' }));
+  figureDataOf = figureData(run);
+  walked = walk(buildMemo(results, figureDataOf, { createdAt: '2025-03-12T09:30:00Z' }));
 }, 60_000);
 
 describe('the memo names each criterion once in full, then by a short name', () => {
@@ -55,6 +57,16 @@ describe('the memo prints the study’s names for columns', () => {
       const bare = t.text.replace(new RegExp(`\\(PRIOR\\)`, 'g'), '');
       expect(bare, `${t.section}: ${t.text}`).not.toMatch(/\bPRIOR\b/);
     }
+  });
+
+  it('names columns after hiding counts, so a breakdown by reason is still dropped whole (Disclosure control, docs/method.md)', () => {
+    const r: Results = JSON.parse(JSON.stringify(results));
+    r.study.notes.push({ code: 'outcome-missing', message: 'Outcome Heating spending in winter (USD) is missing for 209 of the 3,997 units used (208: no row in extra.csv for this CASE_ID; 1: CASE_ID appears more than once in extra.csv); they are left out of that outcome only (rows 206, 322 and 204 more).' });
+    r.study.notes.push({ code: 'join-unmatched', message: 'extra.csv: 1 CASE_ID value matches no unit (such as C-99907).' });
+    const texts = walk(buildMemo(r, figureDataOf, { createdAt: '2025-03-12T09:30:00Z' })).texts.map((t) => t.text);
+    const note = texts.find((t) => t.startsWith('Outcome Heating spending'))!;
+    expect(note).toBe('Outcome Heating spending in winter (USD) is missing for some of the units used; they are left out of that outcome only.');
+    expect(texts).toContain('extra.csv: some ID (CASE_ID) values match no unit.');
   });
 
   it('says which column a reading problem is about with the input’s label first', () => {

@@ -4,7 +4,7 @@
 
 import type { GlossaryEntry, Inline, Section, TableRow } from './document.ts';
 import type { MemoContext } from './memo-context.ts';
-import { COUNT, DELTA, effectOf, upperFirst } from './memo-format.ts';
+import { COUNT, DELTA, effectOf, upperFirst, withColumnLabels } from './memo-format.ts';
 import { shareableText } from './memo-scrub.ts';
 import { constNum, num, numCell, stateCell, text, textCell } from './memo-source.ts';
 import { MEMO_CONSTANTS } from './memo-constants.ts';
@@ -133,7 +133,7 @@ function settingsRows(ctx: MemoContext): TableRow[] {
 
 export function appendixSection(ctx: MemoContext): Section {
   const { r, ledger } = ctx;
-  const warnings = r.warnings.map((w) => [text(`${w.code}: `, 'bold'), text(shareableText(w.message, ledger.threshold, [ctx.words.one, ctx.words.many]))]);
+  const warnings = r.warnings.map((w) => [text(`${w.code}: `, 'bold'), text(withColumnLabels(r, shareableText(w.message, ledger.threshold, [ctx.words.one, ctx.words.many])))]);
   const provenance = [
     [text(`Software: Fenceline ${r.version}. Data: ${r.study.dataFile}${r.study.sheet ? `, sheet “${r.study.sheet}”` : ''}, SHA-256 ${r.study.dataSha256}.`)],
     ...r.study.joins.map((j) => [text(`Joined: ${j.source}, SHA-256 ${j.sha256}.`)]),

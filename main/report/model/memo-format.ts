@@ -95,14 +95,16 @@ export function columnLabel(r: Results, column: string): string {
 const escapeRegExp = (s: string): string => s.replace(/[.*+?^${}()|[\]\\]/g, '\\$&');
 
 /** A message from reading the data with every column name it mentions preceded by the memo's name
- * for that column: "REPAIR_COST is not a number" → "Estimated repair cost (REPAIR_COST) is not a number". */
+ * for that column: "REPAIR_COST is not a number" → "Estimated repair cost (REPAIR_COST) is not a
+ * number"; a name that ends in its unit takes the column inside: "Earnings (USD; EARNINGS)".
+ * Apply it after memo-scrub's shareableText, whose patterns read the message's own parentheses. */
 export function withColumnLabels(r: Results, message: string): string {
   const labels = Object.entries(r.study.columnLabels ?? {}).filter(([column, label]) => label && label !== column);
   if (!labels.length) return message;
   labels.sort((a, b) => b[0].length - a[0].length);
   const byColumn = new Map(labels);
   const pattern = new RegExp(`(?<![\\w])(${labels.map(([c]) => escapeRegExp(c)).join('|')})(?![\\w])`, 'g');
-  const out = message.replace(pattern, (column) => `${byColumn.get(column)!} (${column})`);
+  const out = message.replace(pattern, (column) => { const label = byColumn.get(column)!; return label.endsWith(')') ? `${label.slice(0, -1)}; ${column})` : `${label} (${column})`; });
   return /^[a-z]/.test(message) ? out : upperFirst(out);
 }
 

@@ -46,7 +46,7 @@ function outcomeSection(ctx: MemoContext, i: number): Section {
       { header: 'p-value', align: 'right', format: PVALUE },
     ],
     rows,
-    notes: [[text(`Two-stage least squares near the edge, controlling for the offer probability; ${r.settings.variance === 'CR1' ? `standard errors robust to correlation ${clusterWords(r)} (CR1)` : 'standard errors robust to unequal variances (HC1)'}. See the appendix.`)]],
+    notes: [[text(`Two-stage least squares near the edge, controlling for the offer probability; ${r.settings.variance === 'CR1' ? `cluster-robust standard errors (CR1), allowing for correlation ${clusterWords(r)}` : 'standard errors robust to unequal variances (HC1)'}. See the appendix.`)]],
   }];
 
   const cmp: Inline[] = [];

@@ -125,7 +125,7 @@ export function dataSection(ctx: MemoContext): Section {
   }
   if (s.notes.length) {
     blocks.push({ kind: 'paragraph', runs: [text('Notes from reading the file:')] });
-    blocks.push({ kind: 'list', items: s.notes.map((n) => [text(shareableText(withColumnLabels(r, n.message), ledger.threshold, [ctx.words.one, many]))]) });
+    blocks.push({ kind: 'list', items: s.notes.map((n) => [text(withColumnLabels(r, shareableText(n.message, ledger.threshold, [ctx.words.one, many])))]) });
   }
   r.outcomes.forEach((o, i) => {
     if (o.missing > 0) {

@@ -502,12 +502,24 @@ function keepWithHeight(l: Layout, s: Section, level: 1 | 2 | 3): number {
   return headingHeight(l, sub.heading, subLevel) + keepWithHeight(l, sub, subLevel);
 }
 
+/** Does the paragraph end in a colon, announcing the block after it? */
+function introduces(b: Extract<Block, { kind: 'paragraph' }>): boolean {
+  const last = [...b.runs].reverse().find((r) => r.kind === 'text');
+  return !!last && last.kind === 'text' && /:\s*$/.test(last.text);
+}
+
 function section(l: Layout, s: Section, level: 1 | 2 | 3): void {
   if (s.pageBreakBefore && !atTop(l)) newPage(l);
   const pageH = l.pdf.page.height - MARGIN.top - MARGIN.bottom;
   group(l, 'Sect', () => {
     heading(l, s.heading, level, Math.min(keepWithHeight(l, s, level), pageH * 0.8));
-    for (const b of s.blocks) block(l, b);
+    s.blocks.forEach((b, i) => {
+      // A paragraph that introduces what follows ("Notes from reading the file:") is not left
+      // alone at the foot of a page: it moves with the start of the next block.
+      const next = s.blocks[i + 1];
+      if (b.kind === 'paragraph' && next && introduces(b)) ensure(l, Math.min(leadHeight(l, b) + leadHeight(l, next), pageH * 0.8));
+      block(l, b);
+    });
     for (const c of s.sections ?? []) section(l, c, Math.min(3, level + 1) as 1 | 2 | 3);
   });
 }
