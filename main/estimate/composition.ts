@@ -6,6 +6,7 @@
 // an estimate identified mostly by the income cut-off says little about the age cut-off.
 
 import type { CompiledProgram } from '../rules/ir.ts';
+import { criterionShortName } from '../rules/short-name.ts';
 import type { EstimateWarning } from './types.ts';
 
 /** The per-unit arrays of a PropensityResult this needs. */
@@ -49,12 +50,7 @@ export interface CompositionResult {
 const MASK_BITS = 32;
 
 export function describeAtom(program: CompiledProgram, index: number): string {
-  const atom = program.atoms[index]!;
-  const c = atom.condition as { label?: string; value?: unknown; op?: string; limit?: unknown; in?: unknown[] };
-  if (c.label) return c.label;
-  if (atom.kind === 'member') return `${String(c.value)} is one of ${JSON.stringify(c.in)}`;
-  const limit = typeof c.limit === 'object' && c.limit !== null ? `the limit for each ${String((c.limit as { by?: string }).by)}` : String(c.limit);
-  return `${String(c.value)} ${String(c.op)} ${limit}`;
+  return criterionShortName(program.atoms[index]!.condition);
 }
 
 /** Composition of the boundary sample at each delta. `include` (1 = use) restricts the units, e.g. to those with an outcome. */

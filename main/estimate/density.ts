@@ -26,6 +26,7 @@ import { formatNumber } from './subset.ts';
 import type { EstimateWarning } from './types.ts';
 import type { CompiledProgram, DesignColumns, IrNode } from '../rules/ir.ts';
 import { evalColumn } from '../rules/evaluate-columns.ts';
+import { criterionShortName } from '../rules/short-name.ts';
 
 /** Bandwidth constant for the triangular kernel (McCrary 2008; FROM MEMORY). */
 export const MCCRARY_BANDWIDTH_CONSTANT = 3.348;
@@ -261,8 +262,7 @@ export function densityChecksForProgram(program: CompiledProgram, cols: DesignCo
     if (atom.op === '==' || atom.op === '!=') continue;
     const margin = evalColumn(atom.margin, cols);
     const onMargin = usesDiscrete(atom.margin);
-    const c = atom.condition as { value: unknown; limit: unknown; label?: string };
-    const what = c.label ?? `${String(c.value)} ${atom.op} ${typeof c.limit === 'object' ? 'the limit for each group' : String(c.limit)}`;
+    const what = criterionShortName(atom.condition);
     const test = mccraryTest(margin, 0, options);
     out.push({
       ...test,

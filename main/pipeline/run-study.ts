@@ -351,7 +351,7 @@ function columnLabels(study: Study): Record<string, string> {
 
 /** The rule's criteria for results.json: each in full words once, and its short name for every later mention. */
 function criteriaBlock(atoms: CompiledProgram['atoms'], p: Study['program']): Results['program']['criteria'] {
-  const short = distinctShortNames(atoms.map((a) => criterionShortName(a.condition, p)));
+  const short = distinctShortNames(atoms.map((a) => criterionShortName(a.condition)));
   return atoms.map((a, i) => ({ atom: a.index, path: a.path, description: describeCondition(a.condition, p), shortName: short[i]!, linear: a.linear, movesWithContinuous: a.dependsOnContinuous }));
 }
 

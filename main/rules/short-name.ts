@@ -5,7 +5,7 @@
 // "score ≤ limit by grade", "region is 1, 4 or 7". Deterministic and total on valid programs.
 
 import { exprFromSource, needsParentheses, precedenceOf, PRECEDENCE } from './expression.ts';
-import type { Comparator, Condition, ExprNode, ExprSource, Program } from './types.ts';
+import type { Comparator, Condition, ExprNode, ExprSource } from './types.ts';
 import { formatAmount } from './wording.ts';
 
 const COMPARATOR_SIGNS: Record<Comparator, string> = { '<=': '≤', '<': '<', '>=': '≥', '>': '>', '==': '=', '!=': '≠' };
@@ -45,13 +45,13 @@ function ownLabel(c: Condition): string | undefined {
 }
 
 /** The short name of one condition (a criterion of the rule, or a group of them). */
-export function criterionShortName(c: Condition, p: Program): string {
+export function criterionShortName(c: Condition): string {
   const label = ownLabel(c);
   if (label !== undefined) return label;
-  if ('all' in c) return c.all.map((x) => criterionShortName(x, p)).join(' and ');
-  if ('any' in c) return joinOr(c.any.map((x) => criterionShortName(x, p)));
-  if ('atLeast' in c) return `at least ${c.atLeast} of (${c.of.map((x) => criterionShortName(x, p)).join('; ')})`;
-  if ('not' in c) return `not (${criterionShortName(c.not, p)})`;
+  if ('all' in c) return c.all.map((x) => criterionShortName(x)).join(' and ');
+  if ('any' in c) return joinOr(c.any.map((x) => criterionShortName(x)));
+  if ('atLeast' in c) return `at least ${c.atLeast} of (${c.of.map((x) => criterionShortName(x)).join('; ')})`;
+  if ('not' in c) return `not (${criterionShortName(c.not)})`;
   if ('in' in c) return `${c.value} is ${joinOr(c.in.map((v) => (typeof v === 'number' ? formatAmount(v) : v)))}`;
   const limit = typeof c.limit === 'object' && c.limit !== null ? `limit by ${c.limit.by}` : compactSource(c.limit);
   return `${compactSource(c.value)} ${COMPARATOR_SIGNS[c.op] ?? c.op} ${limit}`;

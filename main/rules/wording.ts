@@ -158,7 +158,7 @@ function lookupWords(l: LookupLimit, p: Program): string {
   entries.sort((a, b) => a.value - b.value || a.order - b.order);
   const parts = entries.map((e) => e.text);
   if (l.else !== undefined) parts.push(`otherwise ${describeExpression(l.else, p)}`);
-  return `the limit for its ${variableName(p, l.by)} (${parts.join('; ')})`;
+  return `the limit by ${variableName(p, l.by)} (${parts.join('; ')})`;
 }
 
 function limitWords(c: Extract<Condition, { op: Comparator }>, p: Program): string {

@@ -66,7 +66,7 @@ export function tutoringLotterySample(n = 15000, seed = 1): TutoringLotterySampl
   sheet.rows[4000]![col(sheet, 'GRADE')] = 6;
   planted.push({
     file: sheet.file, sheetRow: at(4000), what: 'GRADE is 6, a grade the table has no limit for',
-    reason: 'the limit of "score <= the limit for each grade" has no entry for grade 6',
+    reason: 'the limit of "score ≤ limit by grade" has no entry for grade 6',
   });
   sheet.rows[7000]![col(sheet, 'PUPIL_ID')] = '';
   planted.push({ file: sheet.file, sheetRow: at(7000), what: 'PUPIL_ID is empty', reason: 'PUPIL_ID is blank' });

@@ -42,7 +42,7 @@ describe('a limit table with a gap', () => {
     const gaps = report.rowsExcluded.filter((e) => /has no entry for/.test(e.reason));
     const sizes = [...counts.keys()].filter((k) => k > 3).sort((a, b) => a - b);
     expect(sizes.length).toBeGreaterThan(0);
-    expect(gaps.map((g) => g.reason)).toEqual(sizes.map((k) => `the limit of "income <= the limit for each size" has no entry for people in household ${k}`));
+    expect(gaps.map((g) => g.reason)).toEqual(sizes.map((k) => `the limit of "income ≤ limit by size" has no entry for people in household ${k}`));
     expect(gaps.map((g) => g.count)).toEqual(sizes.map((k) => counts.get(k)));
     const warnings = report.notes.filter((n) => n.code === 'limit-table-gap');
     expect(warnings[0]!.message).toBe(`${gaps[0]!.reason}: ${counts.get(sizes[0]!)!.toLocaleString('en-US')} rows are left out. Add an entry for it, or an 'any other value' limit.`);

@@ -51,7 +51,7 @@ describe('boundary composition', () => {
     expect(both).toBeGreaterThan(0);
     expect(c.lotteryOnly).toBe(0);
     expect(c.atoms[0]!.description).toBe('Income under the limit');
-    expect(c.atoms[1]!.description).toBe('age >= 60');
+    expect(c.atoms[1]!.description).toBe('age ≥ 60');
     expect(c.atoms[0]!.path).toBe('program.rule.all[0]');
     expect(c.atoms[0]!.share).toBeCloseTo(nearIncome / boundary, 14);
   });

@@ -13,7 +13,7 @@ import { structuredProgram } from './arbitraries.ts';
 describe('the example program', () => {
   it('reads as one full sentence plus the offer', () => {
     expect(describeProgram(EXAMPLE_PROGRAM)).toBe(
-      'A household is eligible if its annual household income (USD) is at most the limit for its people in household ' +
+      'A household is eligible if its annual household income (USD) is at most the limit by people in household ' +
       '(1: 21,000; 2: 28,000; 3: 35,000; otherwise 35,000 + 7,000 × (people in household − 3)), ' +
       'and either its age of oldest member is at least 65, or its annual household income ÷ people in household is at most 6,000. ' +
       'Eligible households are always offered the benefit; the others are never offered.',
@@ -26,7 +26,7 @@ describe('the example program', () => {
     (p.rule as { all: Array<{ limit: unknown }> }).all[0]!.limit = { by: 'size', table: { '3': 35000, couple: 28000, '1': 21000 } };
     const lookup = (p.rule as { all: Condition[] }).all[0]!;
     expect(describeCondition(lookup, p)).toBe(
-      'its annual household income (USD) is at most the limit for its people in household (single: 21,000; couple: 28,000; 3: 35,000)',
+      'its annual household income (USD) is at most the limit by people in household (single: 21,000; couple: 28,000; 3: 35,000)',
     );
   });
 });
