@@ -125,6 +125,11 @@ export function toStudyFile(d: StudyDraft): Study {
   if (c.cluster) columns.cluster = c.cluster;
   columns.covariates = c.covariates ?? [];
   columns.controls = c.controls ?? [];
+  // Names for the memo of the columns that hold a role that takes one (a column taken out of its
+  // role keeps its name in the draft, so putting it back does not lose what was typed).
+  const named = new Set([c.id, c.decision, c.cluster, typeof c.treatment === 'string' ? c.treatment : undefined, ...columns.covariates, ...columns.controls]);
+  const labels = Object.fromEntries(Object.entries(c.labels ?? {}).filter(([column, label]) => named.has(column) && typeof label === 'string' && label.trim() !== ''));
+  if (Object.keys(labels).length) columns.labels = labels;
   // An untitled study takes its program's name as its title.
   const out: Study = { fenceline: 1, title: d.title.trim() || d.program.name.trim(), program: tidyProgram(d.program), data, columns, settings: d.settings };
   if (d.description) out.description = d.description;

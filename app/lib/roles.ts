@@ -80,12 +80,6 @@ export function setRole(d: StudyDraft, column: string, choice: RoleChoice): void
     case 'control': c.controls = [...(c.controls ?? []), column]; break;
     case 'ignore': break;
   }
-  // A column's name for the memo (columns.labels) belongs to the roles the study file allows it
-  // for; a rule input or an outcome is named elsewhere, an ignored column not at all.
-  if ((choice.role === 'variable' || choice.role === 'outcome' || choice.role === 'ignore') && c.labels) {
-    const { [column]: _dropped, ...rest } = c.labels;
-    if (Object.keys(rest).length) c.labels = rest; else delete c.labels;
-  }
 }
 
 /** Columns the memo mentions besides outcomes and rule inputs — characteristics and the cluster — that may carry a name for the memo. */

@@ -3,12 +3,24 @@ import { blankStudy, normalizeDraft, slug, tidyProgram, toStudyFile } from '../.
 import { validateProgram } from '../../main/rules/validate.ts';
 import { validateStudy } from '../../main/studyfile/validate.ts';
 import { sampleStudy } from './helpers.ts';
+import { setColumnLabel, setRole } from '../../app/lib/roles.ts';
 
 describe('the study draft', () => {
   it('round-trips the sample study into a study file that validates', () => {
     const file = toStudyFile(normalizeDraft(sampleStudy()));
     const checked = validateStudy(file);
     expect(checked.ok).toBe(true);
+  });
+  it('keeps the memo’s names of columns, and writes only those of columns that hold a role', () => {
+    const d = normalizeDraft(sampleStudy());
+    expect(toStudyFile(d).columns.labels).toEqual({ ARREARS_PRIOR: 'Utility arrears the March before (USD)', RENTER: 'Rents the home', OFFICE: 'Benefit office' });
+    setRole(d, 'RENTER', { role: 'ignore' });
+    expect(toStudyFile(d).columns.labels).toEqual({ ARREARS_PRIOR: 'Utility arrears the March before (USD)', OFFICE: 'Benefit office' });
+    expect(validateStudy(toStudyFile(d)).ok).toBe(true);
+    setRole(d, 'RENTER', { role: 'covariate' });
+    expect(toStudyFile(d).columns.labels?.['RENTER']).toBe('Rents the home');
+    setColumnLabel(d, 'OFFICE', ' ');
+    expect(toStudyFile(d).columns.labels).not.toHaveProperty('OFFICE');
   });
   it('makes anything opened complete enough to edit, without inventing values', () => {
     for (const junk of [null, 3, [], { title: 7, program: 'x', columns: { outcomes: 'no' } }]) {
