@@ -8,7 +8,7 @@
 
 import { parentPort, workerData } from 'node:worker_threads';
 import { callApi } from '../api.ts';
-import { AVAILABLE_MEMO_FORMATS } from '../api/evaluate.ts';
+import { AVAILABLE_MEMO_FORMATS } from '../report/memo-names.ts';
 import { warmMemoRenderers } from '../report/warm-up.ts';
 import type { FromJobWorker, ToJobWorker } from './job-messages.ts';
 import { throttleProgress } from './progress-throttle.ts';

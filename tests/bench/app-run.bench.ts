@@ -21,7 +21,7 @@ import { join } from 'node:path';
 import { performance } from 'node:perf_hooks';
 import { createInterface } from 'node:readline';
 import { evaluateStudy } from '../../main/api/evaluate.ts';
-import { AVAILABLE_MEMO_FORMATS } from '../../main/api/evaluate.ts';
+import { AVAILABLE_MEMO_FORMATS } from '../../main/report/memo-names.ts';
 import type { ApiResult, ProgressEvent } from '../../main/contract/api.ts';
 import { ensureNodeBundles } from '../../scripts/build-node.mjs';
 

@@ -15,7 +15,7 @@ import { performance } from 'node:perf_hooks';
 import { evaluateStudy } from '../../main/api/evaluate.ts';
 import { sliceColumns } from '../../main/design/aps.ts';
 import { prepareDesign } from '../../main/design/propensity.ts';
-import { prepareStudy } from '../../main/pipeline/run-study.ts';
+import { prepareStudy } from '../../main/pipeline/prepare-study.ts';
 import { validateStudy } from '../../main/studyfile/validate.ts';
 import { singleFileStudy, writeSingleFileStudy } from '../serve/single-file-study.ts';
 import { bruteForce } from './brute-force.ts';
