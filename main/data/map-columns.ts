@@ -222,12 +222,17 @@ export function mapStudyColumns(table: RawTable, spec: ColumnSpec, joins: readon
   const idColumn = table.columns[idFound.index]!;
   const idName = idColumn.name;
   const unitKeys: Array<string | null> = new Array<string | null>(unitCount);
-  const seen = new Map<string, number>();
+  // 1 where the unit's ID appears on more than one row: one Map lookup per unit (the first row of each ID).
+  const firstRowOf = new Map<string, number>();
+  const duplicated = new Uint8Array(unitCount);
   for (let i = 0; i < unitCount; i++) {
     const k = linkKey(idColumn, i);
     const key = k === '' ? null : k;
     unitKeys[i] = key;
-    if (key !== null) seen.set(key, (seen.get(key) ?? 0) + 1);
+    if (key === null) continue;
+    const first = firstRowOf.get(key);
+    if (first === undefined) firstRowOf.set(key, i);
+    else duplicated[first] = duplicated[i] = 1;
   }
   for (const j of joins) matches.set(j, matchUnits(j, unitKeys));
   for (const p of pending) p();
@@ -395,7 +400,7 @@ export function mapStudyColumns(table: RawTable, spec: ColumnSpec, joins: readon
       exclude(i, kind === CellKind.Error ? `${idName} holds an Excel error value` : kind === CellKind.NoResult ? `${idName} is a formula with no saved result` : `${idName} is blank`);
       continue;
     }
-    if (seen.get(key)! > 1) {
+    if (duplicated[i] === 1) {
       exclude(i, `duplicate ${idName}`);
       continue;
     }

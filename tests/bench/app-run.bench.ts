@@ -10,8 +10,12 @@
 // Comparators in the same run: the same evaluate in this process without the server (from the
 // sources, modules warmed by one untimed run first, so it shows the work itself; the difference is
 // the server's and the job worker's share), and `node -e 1` (Node's own start on this machine now).
-// Each is run REPEAT times, interleaved, and the median kept. The in-process runs also print
-// where their time goes (the pipeline's stage timings, then the memo's steps from its progress).
+// Each is run REPEAT times, interleaved, and the median kept. After each browser-mode run the
+// benchmark waits BENCH_APP_RUN_PAUSE_MS (default 8 s) — as an analyst reads a result before the
+// next run — so that the job worker the server starts ahead for the next call (worker-runner.ts,
+// warmSpare) has warmed up, and its warm-up does not run against the in-process comparator. The
+// in-process runs also print where their time goes (the pipeline's stage timings, then the memo's
+// steps from its progress).
 // BENCH_QUICK=1 runs each twice instead of five times.
 
 import { spawn, spawnSync } from 'node:child_process';
@@ -30,6 +34,7 @@ const SAMPLE = join(ROOT, 'sample-programs', 'apprentice-voucher');
 const REPEAT = Number(process.env.BENCH_APP_RUN_REPEAT ?? (process.env.BENCH_QUICK === '1' ? 2 : 5));
 const TARGET_SECONDS = 4;
 const POLL_MS = 20;
+const PAUSE_MS = Number(process.env.BENCH_APP_RUN_PAUSE_MS ?? 8000);
 const formats = [...AVAILABLE_MEMO_FORMATS];
 
 const median = (xs: number[]) => { const s = [...xs].sort((a, b) => a - b); return s[Math.floor(s.length / 2)]!; };
@@ -110,9 +115,10 @@ try {
   const times = { server: [] as number[], inProcess: [] as number[], node: [] as number[] };
   const stages: string[] = [];
   try {
-    await inProcess(); // warm this process's modules (the server's job worker starts cold every time, as in the app)
+    await inProcess(); // warm this process's modules; meanwhile the server's first job worker warms up
     for (let i = 0; i < REPEAT; i++) {
       times.server.push(await viaServer(srv));
+      await new Promise((r) => setTimeout(r, PAUSE_MS));
       const r = await inProcess();
       times.inProcess.push(r.seconds);
       stages.push(r.stages);
