@@ -182,10 +182,11 @@ export function thresholdChanges(input: ThresholdChangeInput): ThresholdChangeRe
       let newlyEligible = 0;
       let newlyIneligible = 0;
       let outside = 0;
+      const before = base.eligible, after = next.eligible; // locals: the loop runs over every unit for each scenario
       for (let i = 0; i < n; i++) {
         if (countedNow[i] === 0) continue;
-        const a = base.eligible[i]!;
-        const b = next.eligible[i]!;
+        const a = before[i]!;
+        const b = after[i]!;
         if (a === b) continue;
         if (b) newlyEligible++;
         else newlyIneligible++;
