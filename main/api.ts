@@ -8,7 +8,8 @@ import { API_METHODS, OUTPUT_FORMATS, type ApiMethod, type ApiMethods, type ApiR
 import { availableParallelism } from 'node:os';
 import { checkShape, workersProblem, type Shape } from './api/args.ts';
 import { refuse, type CallContext } from './api/context.ts';
-import { checkStudy, evaluateStudy, runDemo } from './api/evaluate.ts';
+import { checkStudy } from './api/check.ts';
+import { evaluateStudy, runDemo } from './api/evaluate.ts';
 import { checkDraftStudy, previewData } from './api/data.ts';
 import { boundaryMap, edgeFiguresOfRun } from './api/figures.ts';
 import { listFolder, openDialog, previewMemo, saveDialog } from './api/files.ts';

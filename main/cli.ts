@@ -9,10 +9,12 @@ import type { Problem } from './rules/types.ts';
 import { workersProblem } from './api/args.ts';
 import type { ProgressPrinter } from './cli/progress.ts';
 import { formatCheckReport, formatEvaluateSummary } from './cli/summaries.ts';
+import { AVAILABLE_MEMO_FORMATS } from './report/memo-names.ts';
 
 // The api (and through it the data readers, the store, the estimators) and the progress bar load
-// only once a command is known to run: `--help` and a wrong command line answer without them.
-// The memo renderers load later still, when a memo is written (main/report/memo-files.ts).
+// only once a command is known to run: `--help` and a wrong command line answer without them;
+// `check` loads its own module (api/check.ts: the data readers and the rule, no estimator, no
+// store). The memo renderers load later still, when a memo is written (main/report/memo-files.ts).
 
 const USAGE = `Fenceline — evaluate a program whose eligibility is set by a formula.
 
@@ -155,8 +157,7 @@ async function main(argv: string[]): Promise<number> {
     return 0;
   }
   if (values.help || !command) { process.stdout.write(USAGE + '\n'); return values.help ? 0 : 2; }
-  const [{ checkStudy, evaluateStudy, runDemo }, { AVAILABLE_MEMO_FORMATS }, { progressPrinter }] =
-    await Promise.all([import('./api.ts'), import('./api/evaluate.ts'), import('./cli/progress.ts')]);
+  const { progressPrinter } = await import('./cli/progress.ts');
   const printer = progressPrinter(process.stderr, !values.quiet);
   activePrinter = printer;
   const controller = new AbortController();
@@ -171,6 +172,8 @@ async function main(argv: string[]): Promise<number> {
   switch (command) {
     case 'check': {
       if (rest.length !== 1) fail('command line', `check takes one study file: npm run --silent cli -- check <study.json> (see check --help)`);
+      // check needs the data readers and the rule only (api/check.ts), not the run's estimators or the store
+      const { checkStudy } = await import('./api/check.ts');
       const report = unwrap(await checkStudy({ studyPath: rest[0]! }, ctx));
       printer.finish();
       process.stdout.write(formatCheckReport(report));
@@ -184,6 +187,7 @@ async function main(argv: string[]): Promise<number> {
         ...(values.draws !== undefined ? { draws: parseWhole(values.draws, '--draws')! } : {}),
         ...(values.seed !== undefined ? { seed: parseWhole(values.seed, '--seed')! } : {}),
       };
+      const { evaluateStudy } = await import('./api/evaluate.ts');
       const report = unwrap(await evaluateStudy({
         studyPath: rest[0]!, outDir: values.out, overrides, formats,
         ...(values.workspace ? { workspacePath: values.workspace } : {}),
@@ -195,6 +199,7 @@ async function main(argv: string[]): Promise<number> {
     }
     case 'demo': {
       if (!values.out) fail('--out', 'demo needs an output folder: add --out <dir>.');
+      const { runDemo } = await import('./api/evaluate.ts');
       const report = unwrap(await runDemo({ outDir: values.out, formats, ...(workers !== undefined ? { workers } : {}) }, ctx));
       printer.finish();
       process.stdout.write(formatEvaluateSummary(report));

@@ -37,6 +37,8 @@ export interface ServeOptions {
   workspaceDir?: string;
   /** Largest upload accepted (default UPLOAD_MAX_BYTES; smaller in tests). */
   uploadMaxBytes?: number;
+  /** Keep a job worker warm for the next long call (worker-runner.ts `warmSpare`): `npm run serve` does; tests leave it off. */
+  warmJobWorker?: boolean;
 }
 
 export interface RunningServer {
@@ -210,7 +212,7 @@ export async function startServer(options: ServeOptions = {}): Promise<RunningSe
   // Long methods (imports, the workspace, estimation) run on worker threads, so this loop keeps answering.
   // The session's allow-list (main/api/access.ts): the page names no path it was not given.
   const access = sessionGrants(workspaceDir);
-  const host = { host: 'browser' as const, workspaceDir, access, runInWorker: createWorkerRunner() };
+  const host = { host: 'browser' as const, workspaceDir, access, runInWorker: createWorkerRunner({ warmSpare: options.warmJobWorker ?? false }) };
   const fault = (e: unknown): ApiResult<unknown> => { console.error('Fenceline internal fault:', e); return FAULT; };
   const jobs = new JobTable(callApi, host, fault);
   let port = 0;
@@ -291,7 +293,7 @@ async function main(): Promise<void> {
   if (!Number.isInteger(port) || port < 0 || port > 65535) usage(`--port must be a whole number from 0 to 65535; found "${values.port}".`);
   let running: RunningServer;
   try {
-    running = await startServer({ port, ...(values.workspace ? { workspaceDir: values.workspace } : {}), ...(values.renderer ? { rendererDir: values.renderer } : {}) });
+    running = await startServer({ port, warmJobWorker: true, ...(values.workspace ? { workspaceDir: values.workspace } : {}), ...(values.renderer ? { rendererDir: values.renderer } : {}) });
   } catch (e) {
     const code = (e as NodeJS.ErrnoException).code;
     console.error(code === 'EADDRINUSE' ? `Port ${port} is in use by another program. Choose another with --port, or --port 0 for any free port.` : `Browser mode could not start (${code ?? (e as Error).message}).`);

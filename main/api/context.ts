@@ -16,3 +16,5 @@ export const refuse = (problems: Problem[]): ApiResult<never> => {
   return { ok: false, error: { kind: cancelled ? 'cancelled' : 'input', problems } };
 };
 
+/** A stage stopped by its signal (design/cancelled.ts), as the api's answer. */
+export const cancelled = (e: Error): ApiResult<never> => ({ ok: false, error: { kind: 'cancelled', problems: [{ path: '', message: e.message }] } });

@@ -8,7 +8,7 @@ import { displayText } from '../data/find-column.ts';
 import { readTable } from '../data/read-table.ts';
 import { CellKind, type RawColumn } from '../data/types.ts';
 import { getOwn, isPlainObject } from '../rules/json-read.ts';
-import { checkValidatedStudy } from './evaluate.ts';
+import { checkValidatedStudy } from './check.ts';
 import { validateStudy } from '../studyfile/validate.ts';
 import { suggestRoles, type ColumnFacts, type ProgramColumns } from '../data/suggest-roles.ts';
 import { readProblem, refuseIf, studyFilesProblems } from './access.ts';

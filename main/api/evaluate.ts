@@ -1,62 +1,22 @@
-// The study methods of the api: check a study, evaluate it, run the bundled demo. They adapt
-// files and the workspace to the pipeline (main/pipeline) and hold no analysis logic.
+// The study methods of the api: evaluate a study, run the bundled demo (checking one is check.ts).
+// They adapt files and the workspace to the pipeline (main/pipeline) and hold no analysis logic.
 
 import { join, resolve } from 'node:path';
 import type {
-  ApiResult, CheckArgs, CheckReport, DemoArgs, EvaluateArgs, EvaluateReport, OutputFormat,
+  ApiResult, DemoArgs, EvaluateArgs, EvaluateReport,
 } from '../contract/api.ts';
 import type { Study } from '../contract/study.ts';
 import { Cancelled, validateSettings } from '../design/propensity.ts';
 import { inputClashes } from '../output/input-clash.ts';
 import { writeRun } from '../pipeline/record.ts';
-import { prepareStudy, runStudy } from '../pipeline/run-study.ts';
-import { MEMO_FILE_NAMES } from '../report/memo-files.ts';
-import { describeProgram } from '../rules/wording.ts';
+import { runStudy } from '../pipeline/run-study.ts';
+import { AVAILABLE_MEMO_FORMATS, MEMO_FILE_NAMES } from '../report/memo-names.ts';
 import { studyFingerprint, withAbsolutePaths } from '../studyfile/fingerprint.ts';
 import { SAMPLES_DIR } from '../resources.ts';
 import { loadAllowedStudy, refuseIf, studyDataPaths, workspaceProblem, writeProblem } from './access.ts';
-import { refuse, type CallContext } from './context.ts';
+import { cancelled, refuse } from './context.ts';
 import type { HostContext } from './host.ts';
 
-const cancelled = (e: Cancelled): ApiResult<never> => ({ ok: false, error: { kind: 'cancelled', problems: [{ path: '', message: e.message }] } });
-
-/** The memo formats this version can write (docs/cli.md: memo.pdf, memo.html, memo.docx, tables.xlsx). */
-export const AVAILABLE_MEMO_FORMATS: readonly OutputFormat[] = ['pdf', 'html', 'docx', 'xlsx'];
-
-export async function checkStudy(args: CheckArgs, ctx: HostContext = {}): Promise<ApiResult<CheckReport>> {
-  const loaded = loadAllowedStudy(ctx, args.studyPath);
-  if (!loaded.ok) return refuse(loaded.problems);
-  return checkValidatedStudy(loaded.value.study, loaded.value.baseDir, ctx);
-}
-
-/** Read, map and prepare a validated study's data (the same stages as evaluate) and report what will be used, estimating nothing. */
-export async function checkValidatedStudy(study: Study, baseDir: string, ctx: CallContext = {}): Promise<ApiResult<CheckReport>> {
-  let ready;
-  try {
-    ready = await prepareStudy(study, { baseDir, ...ctx });
-  } catch (e) {
-    if (e instanceof Cancelled) return cancelled(e);
-    throw e;
-  }
-  if (!ready.ok) return refuse(ready.problems);
-  const { read: { mapped, table }, prepared } = ready.value;
-  return {
-    ok: true,
-    value: {
-      title: study.title,
-      dataFile: table.source.fileName,
-      sheet: table.source.sheet,
-      rowsRead: mapped.rowsRead,
-      rowsUsed: prepared.data.n,
-      rowsExcluded: [...mapped.excluded, ...prepared.excludedByRule],
-      outcomesMissing: study.columns.outcomes.map((o, i) => ({ column: o.column, count: prepared.data.outcomeMissing[i]?.count ?? 0 })),
-      fidelity: prepared.fidelity,
-      eligible: prepared.eligible.reduce((a, b) => a + b, 0),
-      notes: [...mapped.notes, ...prepared.warnings],
-      ruleWording: describeProgram(study.program),
-    },
-  };
-}
 
 function withOverrides(study: Study, args: EvaluateArgs): ApiResult<Study> {
   const o = args.overrides ?? {};

@@ -15,7 +15,7 @@ import { storedRunView } from './figures.ts';
 import type { Results } from '../contract/results.ts';
 import { writeFilesAtomically } from '../output/write-files.ts';
 import { openWorkspace } from '../store/workspace.ts';
-import { AVAILABLE_MEMO_FORMATS } from './evaluate.ts';
+import { AVAILABLE_MEMO_FORMATS } from '../report/memo-names.ts';
 import { refuse } from './context.ts';
 import { NO_WORKSPACE, workspaceLayout, type HostContext } from './host.ts';
 import { ensureFindings } from '../report/findings/index.ts';

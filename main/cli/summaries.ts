@@ -3,8 +3,9 @@
 // (main/report/findings), never recomputed here.
 
 import type { CheckReport, EvaluateReport } from '../contract/api.ts';
+import { countText } from '../data/count-text.ts';
 
-const n = (v: number) => v.toLocaleString('en-US');
+const n = countText;
 const pct = (v: number) => `${(100 * v).toFixed(0)}%`;
 const fmt = (v: number | null | undefined, digits = 2) =>
   v === null || v === undefined || !Number.isFinite(v) ? '—' : v.toLocaleString('en-US', { maximumFractionDigits: digits, minimumFractionDigits: digits });

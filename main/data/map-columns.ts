@@ -7,6 +7,7 @@
 import type { Checked, Problem } from '../rules/types.ts';
 import { displayText, findColumn, linkKey, missingColumnMessage } from './find-column.ts';
 import { decimalCommaColumn, decimalCommaNumber } from './cell-text.ts';
+import { countText } from './count-text.ts';
 import { DUPLICATE_KEY, findJoinedSource, matchUnits, NO_ROW, type JoinedTable, type JoinSourceRef, type UnitMatch } from './join.ts';
 import { listRows } from './locate.ts';
 import { CellKind, type RawColumn, type RawTable, type TableNote } from './types.ts';
@@ -199,7 +200,7 @@ export function mapStudyColumns(table: RawTable, spec: ColumnSpec, joins: readon
     if (dates === 0) return;
     problems.push({
       path: v.path,
-      message: `${res.header} holds ${dates.toLocaleString('en-US')} date${dates > 1 ? 's' : ''} (such as ${displayText(res.column, first)}), but it is the continuous rule input "${v.key}". If it is a date on purpose, add "${res.header}" to "dateColumns" under data (dates are read as days since 1970-01-01); otherwise correct those cells.`,
+      message: `${res.header} holds ${countText(dates)} date${dates > 1 ? 's' : ''} (such as ${displayText(res.column, first)}), but it is the continuous rule input "${v.key}". If it is a date on purpose, add "${res.header}" to "dateColumns" under data (dates are read as days since 1970-01-01); otherwise correct those cells.`,
     });
   });
   // Numbers written the European way (decimal comma, point or space groups, a percent sign).
@@ -221,12 +222,17 @@ export function mapStudyColumns(table: RawTable, spec: ColumnSpec, joins: readon
   const idColumn = table.columns[idFound.index]!;
   const idName = idColumn.name;
   const unitKeys: Array<string | null> = new Array<string | null>(unitCount);
-  const seen = new Map<string, number>();
+  // 1 where the unit's ID appears on more than one row: one Map lookup per unit (the first row of each ID).
+  const firstRowOf = new Map<string, number>();
+  const duplicated = new Uint8Array(unitCount);
   for (let i = 0; i < unitCount; i++) {
     const k = linkKey(idColumn, i);
     const key = k === '' ? null : k;
     unitKeys[i] = key;
-    if (key !== null) seen.set(key, (seen.get(key) ?? 0) + 1);
+    if (key === null) continue;
+    const first = firstRowOf.get(key);
+    if (first === undefined) firstRowOf.set(key, i);
+    else duplicated[first] = duplicated[i] = 1;
   }
   for (const j of joins) matches.set(j, matchUnits(j, unitKeys));
   for (const p of pending) p();
@@ -394,7 +400,7 @@ export function mapStudyColumns(table: RawTable, spec: ColumnSpec, joins: readon
       exclude(i, kind === CellKind.Error ? `${idName} holds an Excel error value` : kind === CellKind.NoResult ? `${idName} is a formula with no saved result` : `${idName} is blank`);
       continue;
     }
-    if (seen.get(key)! > 1) {
+    if (duplicated[i] === 1) {
       exclude(i, `duplicate ${idName}`);
       continue;
     }
@@ -460,7 +466,7 @@ export function mapStudyColumns(table: RawTable, spec: ColumnSpec, joins: readon
     }
     if (missing.count > 0) {
       const label = spec.outcomes[o]!.label ?? res!.header;
-      const grouped = (k: number) => k.toLocaleString('en-US');
+      const grouped = countText;
       const why = causes.size === 1 ? [...causes.keys()][0]! : [...causes].map(([cause, count]) => `${grouped(count)}: ${cause}`).join('; ');
       // One wording whatever the count: the memo shares this note with the counts taken out, and a
       // singular verb would give a count of one away (docs/method.md, disclosure).

@@ -29,7 +29,8 @@ protocol.registerSchemesAsPrivileged([{ scheme: APP_SCHEME, privileges: { standa
 let window: BrowserWindow | null = null;
 const calls = new Map<string, AbortController>();
 // Long methods run on worker threads (dist/job-worker.js beside this bundle), never on this thread.
-const runInWorker = createWorkerRunner();
+// one job worker kept warm for the next run's memo (worker-runner.ts)
+const runInWorker = createWorkerRunner({ warmSpare: true });
 // The session's allow-list (main/api/access.ts): files the user picked in a dialog, and the workspace's own folders.
 let access: AccessGrants | null = null;
 

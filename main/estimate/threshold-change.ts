@@ -14,7 +14,7 @@
 // change would reach beyond it. The result says so (`valid`, `validity`).
 
 import { compileProgram } from '../rules/compile.ts';
-import { verdicts } from '../rules/atoms.ts';
+import { atomColumns, verdictsFromAtoms } from '../rules/atoms.ts';
 import type { CompiledProgram, DesignColumns } from '../rules/ir.ts';
 import type { Condition, ExprSource, LookupLimit, Program } from '../rules/types.ts';
 import { normalCritical } from './inference.ts';
@@ -154,9 +154,14 @@ export function thresholdChanges(input: ThresholdChangeInput): ThresholdChangeRe
   const critical = normalCritical(input.level ?? 0.95);
   const changes = input.changes ?? DEFAULT_CHANGES;
   const warnings: EstimateWarning[] = [];
-  const base = verdicts(program, cols);
-  const undefinedRows = new Set(base.undefinedRows);
-  const include = (i: number) => (!input.include || input.include[i] === 1) && !undefinedRows.has(i);
+  // The atoms of the rule as it is, evaluated once: each scenario moves one limit, so it
+  // re-evaluates only the atom(s) that limit is part of (atomColumns with `reuse`).
+  const baseAtoms = atomColumns(program, cols);
+  const base = verdictsFromAtoms(program, baseAtoms, n);
+  // 1 = the unit is counted: included, and the rule as it is can be evaluated for it.
+  const counted = new Uint8Array(n);
+  for (let i = 0; i < n; i++) counted[i] = !input.include || input.include[i] === 1 ? 1 : 0;
+  for (const i of base.undefinedRows) counted[i] = 0;
   const gap = program.offer.ifEligible - program.offer.ifIneligible;
   const slots = collectLimits(program.program.rule, 'program.rule');
   const scenarios: LimitScenario[] = [];
@@ -176,15 +181,17 @@ export function thresholdChanges(input: ThresholdChangeInput): ThresholdChangeRe
         });
         continue;
       }
-      const next = verdicts(compiled.value, cols);
-      const nextUndefined = new Set(next.undefinedRows);
+      const next = verdictsFromAtoms(compiled.value, atomColumns(compiled.value, cols, baseAtoms), n);
+      const countedNow = counted.slice();
+      for (const i of next.undefinedRows) countedNow[i] = 0;
       let newlyEligible = 0;
       let newlyIneligible = 0;
       let outside = 0;
+      const before = base.eligible, after = next.eligible; // locals: the loop runs over every unit for each scenario
       for (let i = 0; i < n; i++) {
-        if (!include(i) || nextUndefined.has(i)) continue;
-        const a = base.eligible[i]!;
-        const b = next.eligible[i]!;
+        if (countedNow[i] === 0) continue;
+        const a = before[i]!;
+        const b = after[i]!;
         if (a === b) continue;
         if (b) newlyEligible++;
         else newlyIneligible++;

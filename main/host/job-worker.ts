@@ -2,9 +2,14 @@
 // host's event loop stays free. The call goes through callApi again — the same checks, the same
 // methods — but without a worker runner in its context, so it runs here. A cancel message
 // aborts the call's AbortController; the host terminates the thread if the work does not stop.
+// A worker started ahead of its call ("warm", worker-runner.ts) first renders a small document in
+// every memo format (report/warm-up.ts) while it waits, so its call's memo starts warm; the call
+// stops the warm-up at its next step.
 
-import { parentPort } from 'node:worker_threads';
+import { parentPort, workerData } from 'node:worker_threads';
 import { callApi } from '../api.ts';
+import { AVAILABLE_MEMO_FORMATS } from '../report/memo-names.ts';
+import { warmMemoRenderers } from '../report/warm-up.ts';
 import type { FromJobWorker, ToJobWorker } from './job-messages.ts';
 import { throttleProgress } from './progress-throttle.ts';
 
@@ -12,6 +17,13 @@ const port = parentPort!;
 const controller = new AbortController();
 const post = (m: FromJobWorker) => port.postMessage(m);
 let started = false;
+
+if ((workerData as { warm?: boolean } | null)?.warm) {
+  warmMemoRenderers(AVAILABLE_MEMO_FORMATS, () => started).catch((e: unknown) => {
+    // The call to come renders from scratch as any cold worker does; the fault is worth a line in the log.
+    console.error('Fenceline: warming up the memo renderers failed:', e);
+  });
+}
 
 port.on('message', (msg: ToJobWorker) => {
   if (msg.type === 'cancel') { controller.abort(); return; }

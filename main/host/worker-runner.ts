@@ -25,6 +25,12 @@ export interface WorkerRunnerOptions {
   maxRunning?: number;
   /** Calls that may wait for a job worker; one more is answered "busy" at once (default 8). */
   maxWaiting?: number;
+  /**
+   * Keep one job worker started ahead of the next call, warming up the memo renderers while it
+   * waits (job-worker.ts), and start the next one when a call ends: the app's hosts (browser mode,
+   * Electron) set it; off by default (tests start many runners).
+   */
+  warmSpare?: boolean;
 }
 
 /** The cores less one (the host's own thread keeps answering), at least one. */
@@ -86,10 +92,38 @@ export function createWorkerRunner(options: WorkerRunnerOptions = {}): WorkerRun
   };
 }
 
+/**
+ * Job worker threads, one per call; with `warmSpare`, one is started ahead and waits, unreferenced
+ * (it keeps no host alive), until a call takes it — every call still gets a thread of its own.
+ */
+function workerSource(options: WorkerRunnerOptions): { take: () => Worker; replenish: () => void } {
+  const url = () => options.workerUrl ?? jobWorkerUrl();
+  let spare: Worker | null = null;
+  const replenish = () => {
+    if (!options.warmSpare || spare !== null) return;
+    const w = new Worker(url(), { workerData: { warm: true } });
+    w.unref();
+    // A spare that fails or stops before its call is dropped; the next call starts its own thread.
+    const drop = () => { if (spare === w) spare = null; };
+    w.on('error', drop);
+    w.on('exit', drop);
+    spare = w;
+  };
+  const take = () => {
+    const w = spare ?? new Worker(url());
+    spare = null;
+    w.ref();
+    return w;
+  };
+  replenish();
+  return { take, replenish };
+}
+
 function singleRunner(options: WorkerRunnerOptions): WorkerRunner {
   const graceMs = options.cancelGraceMs ?? 5_000;
+  const workers = workerSource(options);
   return (method, args, ctx) => new Promise<ApiResult<unknown>>((resolve, reject) => {
-    const worker = new Worker(options.workerUrl ?? jobWorkerUrl());
+    const worker = workers.take();
     let settled = false;
     let killTimer: ReturnType<typeof setTimeout> | undefined;
     const finish = (settle: () => void) => {
@@ -99,6 +133,7 @@ function singleRunner(options: WorkerRunnerOptions): WorkerRunner {
       ctx.signal?.removeEventListener('abort', onAbort);
       void worker.terminate();
       settle();
+      workers.replenish();
     };
     const onAbort = () => {
       const cancel: ToJobWorker = { type: 'cancel' };

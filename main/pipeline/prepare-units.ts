@@ -3,6 +3,7 @@
 // instrument Z, and the fidelity of the recorded decisions to the formula. Pure.
 
 import type { ExclusionReason, Fidelity, Warning } from '../contract/results.ts';
+import { countText } from '../data/count-text.ts';
 import type { MappedData } from '../data/map-columns.ts';
 import type { CompiledProgram, DesignColumns, IrNode } from '../rules/ir.ts';
 import { evalColumn } from '../rules/evaluate-columns.ts';
@@ -88,7 +89,7 @@ function discreteLabel(program: CompiledProgram, by: number): string {
   return (v.label || v.key).replace(/^./, (c) => c.toLowerCase());
 }
 
-const rowsWord = (n: number) => `${n.toLocaleString('en-US')} row${n === 1 ? '' : 's'}`;
+const rowsWord = (n: number) => `${countText(n)} row${n === 1 ? '' : 's'}`;
 
 /**
  * Why a criterion cannot be evaluated for the units in `rows`, grouped: each missing table entry

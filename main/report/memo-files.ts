@@ -11,14 +11,8 @@ import { showsIndividualUnits } from './charts/spec.ts';
 import type { Document } from './model/document.ts';
 import type { FigureData } from './model/figure-types.ts';
 import { buildMemo, type MemoOptions } from './model/memo.ts';
+import { MEMO_FILE_NAMES } from './memo-names.ts';
 import { figuresOf, renderFigures } from './render/figures.ts';
-
-export const MEMO_FILE_NAMES: Readonly<Record<OutputFormat, string>> = {
-  pdf: 'memo.pdf',
-  html: 'memo.html',
-  docx: 'memo.docx',
-  xlsx: 'tables.xlsx',
-};
 
 // Each renderer and the library behind it (pdfkit, docx, exceljs) is loaded on first use, so a
 // start that writes no memo (check, --help, a run with --formats none) loads none of them.

@@ -81,18 +81,69 @@ export interface Verdicts {
   undefinedRows: number[];
 }
 
-export function verdicts(program: CompiledProgram, cols: DesignColumns): Verdicts {
+/** Every atom's truth column, and for a comparison the rows where its margin is not finite. */
+export interface AtomColumns {
+  /** What each atom computes (atomKey): an atom with the same key gives the same columns. */
+  keys: string[];
+  truth: Uint8Array[];
+  /** Rows (ascending) where the atom's margin is not finite; empty for a membership. */
+  undefinedRows: number[][];
+}
+
+/** Numbers JSON cannot tell apart (NaN, ±Infinity, −0), Maps and Sets written out in full. */
+function keyReplacer(_: string, v: unknown): unknown {
+  if (typeof v === 'number') return Number.isFinite(v) && !Object.is(v, -0) ? v : String(Object.is(v, -0) ? '-0' : v);
+  if (v instanceof Map) return ['Map', [...v]];
+  if (v instanceof Set) return ['Set', [...v]];
+  return v;
+}
+
+/** Everything an atom's truth column depends on besides the data: its comparison and margin, or its variable and members. */
+export function atomKey(a: Atom): string {
+  return a.kind === 'member' ? JSON.stringify(['member', a.disc, a.members], keyReplacer) : JSON.stringify(['compare', a.op, a.margin], keyReplacer);
+}
+
+/**
+ * Every atom of `program` evaluated over `cols`. With `reuse` (the columns of another program
+ * over the same `cols`), an atom whose key equals the reused atom's at the same position takes its
+ * columns instead of being evaluated again (a rule with one limit moved re-evaluates one atom).
+ */
+export function atomColumns(program: CompiledProgram, cols: DesignColumns, reuse?: AtomColumns): AtomColumns {
   const n = cols.n;
-  const bad = new Set<number>();
-  const truth = program.atoms.map((a) => {
-    if (a.kind !== 'compare') return atomTruthColumn(a, cols);
+  const keys = program.atoms.map(atomKey);
+  const truth: Uint8Array[] = [];
+  const undefinedRows: number[][] = [];
+  program.atoms.forEach((a, i) => {
+    if (reuse && reuse.keys[i] === keys[i]) {
+      truth.push(reuse.truth[i]!);
+      undefinedRows.push(reuse.undefinedRows[i]!);
+      return;
+    }
+    if (a.kind !== 'compare') {
+      truth.push(atomTruthColumn(a, cols));
+      undefinedRows.push([]);
+      return;
+    }
     const m = evalColumn(a.margin, cols);
-    for (let r = 0; r < n; r++) if (!Number.isFinite(m[r]!)) bad.add(r);
-    return atomTruthColumn(a, cols, m);
+    const bad: number[] = [];
+    for (let r = 0; r < n; r++) if (!Number.isFinite(m[r]!)) bad.push(r);
+    truth.push(atomTruthColumn(a, cols, m));
+    undefinedRows.push(bad);
   });
-  const eligible = n > 0 && truth.length > 0 ? treeColumn(program.tree, truth, n) : new Uint8Array(n);
+  return { keys, truth, undefinedRows };
+}
+
+/** The verdicts from the atoms' columns (atomColumns of the same program). */
+export function verdictsFromAtoms(program: CompiledProgram, atoms: AtomColumns, n: number): Verdicts {
+  const eligible = n > 0 && atoms.truth.length > 0 ? treeColumn(program.tree, atoms.truth, n) : new Uint8Array(n);
   const offerProbability = new Float64Array(n);
   const { ifEligible, ifIneligible } = program.offer;
   for (let r = 0; r < n; r++) offerProbability[r] = eligible[r] ? ifEligible : ifIneligible;
+  const bad = new Set<number>();
+  for (const rows of atoms.undefinedRows) for (const r of rows) bad.add(r);
   return { eligible, offerProbability, undefinedRows: [...bad].sort((a, b) => a - b) };
+}
+
+export function verdicts(program: CompiledProgram, cols: DesignColumns): Verdicts {
+  return verdictsFromAtoms(program, atomColumns(program, cols), cols.n);
 }

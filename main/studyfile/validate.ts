@@ -3,7 +3,7 @@
 // the program must already be an object (load.ts reads a separate program file first).
 
 import { DEFAULT_SETTINGS, type JoinSource, type OutcomeColumn, type Study, type StudyColumns, type StudyData, type StudySettings } from '../contract/study.ts';
-import { validateSettings } from '../design/propensity.ts';
+import { validateSettings } from '../design/settings.ts';
 import { describeGiven, fieldPath, getOwn, hasOwn, isPlainObject, quoteText, unknownFieldProblems, type Obj } from '../rules/json-read.ts';
 import type { Checked, Problem, Program } from '../rules/types.ts';
 import { validateProgram } from '../rules/validate.ts';

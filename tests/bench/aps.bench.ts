@@ -15,14 +15,13 @@
 import { readFileSync } from 'node:fs';
 import { performance } from 'node:perf_hooks';
 import { computeApsBlock, METHOD_EXACT_CORNER, METHOD_SIMULATED, sliceColumns, type ApsColumns } from '../../main/design/aps.ts';
-import { ballPointSet, cubeDimension, cubeToBall } from '../../main/design/ball-points.ts';
+import { ballPointSet } from '../../main/design/ball-points.ts';
 import { computePropensityParallel, defaultWorkerCount } from '../../main/design/parallel/pool.ts';
 import { createRng } from '../../main/design/random.ts';
 import { compileProgram } from '../../main/rules/compile.ts';
-import { compilePoint } from '../../main/rules/evaluate-scalar.ts';
-import { holds, verdicts } from '../../main/rules/atoms.ts';
-import { evalTree } from '../../main/rules/logic.ts';
-import type { CompiledProgram, DesignColumns } from '../../main/rules/ir.ts';
+import { verdicts } from '../../main/rules/atoms.ts';
+import type { DesignColumns } from '../../main/rules/ir.ts';
+import { bruteForce } from './brute-force.ts';
 
 const N = Number(process.env.BENCH_UNITS ?? 1_000_000);
 const N_CORNER = Number(process.env.BENCH_CORNER_UNITS ?? (process.env.BENCH_QUICK === '1' ? 2_000 : 20_000));
@@ -52,34 +51,6 @@ function synthetic(n: number): DesignColumns {
 
 let peakRss = process.memoryUsage().rss;
 const sampler = setInterval(() => { peakRss = Math.max(peakRss, process.memoryUsage().rss); }, 20);
-
-function bruteForce(p: CompiledProgram, cols: DesignColumns, scales: number[], delta: number, draws: number, seed: number): Float64Array {
-  const d = p.continuous.length;
-  const margins = p.atoms.map((a) => (a.kind === 'compare' ? compilePoint(a.margin) : null));
-  const rng = createRng(seed, 99);
-  const v = new Float64Array(cubeDimension(d));
-  const z = new Float64Array(d);
-  const x = new Float64Array(d);
-  const dv = new Float64Array(p.discrete.length);
-  const state = new Uint8Array(p.atoms.length);
-  const out = new Float64Array(cols.n);
-  for (let r = 0; r < cols.n; r++) {
-    for (let j = 0; j < dv.length; j++) dv[j] = cols.discrete[j]![r]!;
-    let sum = 0;
-    for (let s = 0; s < draws; s++) {
-      for (let j = 0; j < v.length; j++) v[j] = rng.next();
-      cubeToBall(v, d, z, 0);
-      for (let j = 0; j < d; j++) x[j] = cols.continuous[j]![r]! + delta * scales[j]! * z[j]!;
-      p.atoms.forEach((a, i) => {
-        if (a.kind === 'member') state[i] = a.members.has(dv[a.disc]!) ? 1 : 0;
-        else state[i] = holds(margins[i]!(x, dv), a.op) ? 1 : 0;
-      });
-      sum += evalTree(p.tree, state) ? p.offer.ifEligible : p.offer.ifIneligible;
-    }
-    out[r] = sum / draws;
-  }
-  return out;
-}
 
 const fmt = (x: number, digits = 2) => x.toLocaleString('en-US', { maximumFractionDigits: digits, minimumFractionDigits: digits });
 

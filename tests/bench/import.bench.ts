@@ -31,6 +31,7 @@ import { fileURLToPath } from 'node:url';
 import { createInflateRaw } from 'node:zlib';
 import ExcelJS from 'exceljs';
 import { createRng } from '../../main/design/random.ts';
+import { exceljsAlone } from './exceljs-reader.ts';
 
 /** Data rows: with the header, 1,048,576 rows, the most an Excel sheet holds. */
 const ROWS = Number(process.env.BENCH_IMPORT_ROWS ?? (process.env.BENCH_QUICK === '1' ? 100_000 : 1_048_575));
@@ -89,20 +90,6 @@ async function generate(dir: string): Promise<{ xlsx: string; csv: string }> {
   ws.commit();
   await wb.commit();
   return { xlsx, csv };
-}
-
-/** exceljs's streaming reader alone, with the options readTable uses; touches every cell value. */
-async function exceljsAlone(path: string): Promise<number> {
-  const file = createReadStream(path);
-  const reader = new ExcelJS.stream.xlsx.WorkbookReader(file, { worksheets: 'emit', sharedStrings: 'cache', styles: 'cache', hyperlinks: 'ignore', entries: 'ignore' });
-  let cells = 0;
-  for await (const worksheet of reader) {
-    for await (const row of worksheet) {
-      const values = row.values as unknown[];
-      for (let c = 1; c < values.length; c++) if (values[c] !== undefined) cells++;
-    }
-  }
-  return cells;
 }
 
 /** The part holding the workbook's only sheet (the central directory read by zip-check.ts). */

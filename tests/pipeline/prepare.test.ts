@@ -7,7 +7,8 @@ import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { checkStudy, evaluateStudy } from '../../main/api/evaluate.ts';
+import { checkStudy } from '../../main/api/check.ts';
+import { evaluateStudy } from '../../main/api/evaluate.ts';
 import { fixtureCsv, fixtureStudy } from '../report/memo-fixture.ts';
 
 function write(study: unknown, csv: string): string {

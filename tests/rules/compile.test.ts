@@ -1,11 +1,11 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { verdicts } from '../../main/rules/atoms.ts';
+import { atomColumns, atomKey, verdicts, verdictsFromAtoms } from '../../main/rules/atoms.ts';
 import { compileProgram, lowerValidatedProgram } from '../../main/rules/compile.ts';
 import { evalColumn, gradColumn, intervalColumns } from '../../main/rules/evaluate-columns.ts';
 import { compilePoint } from '../../main/rules/evaluate-scalar.ts';
 import { evaluateExpression, formatExpression } from '../../main/rules/expression.ts';
-import type { CompiledProgram, DesignColumns } from '../../main/rules/ir.ts';
+import type { Atom, CompiledProgram, DesignColumns } from '../../main/rules/ir.ts';
 import type { ExprNode, Program } from '../../main/rules/types.ts';
 import { exprTree } from './arbitraries.ts';
 import { exampleCopy } from './example-program.ts';
@@ -167,5 +167,55 @@ describe('verdicts on the example program', () => {
     const r2 = compileProgram(noElse);
     if (!r2.ok) throw new Error('no else');
     expect(verdicts(r2.value, c).undefinedRows).toEqual([3, 4]); // size 5 has no entry and no else
+  });
+});
+
+describe('atom columns reused across a moved limit (atomColumns with reuse)', () => {
+  // The rule with one limit moved must give exactly the verdicts of evaluating it from scratch;
+  // only the moved limit's atom is evaluated again. Cases hand-picked round the example's limits.
+  const rows = [
+    [20000, 70, 1], [21000, 40, 1], [21500, 66, 1], [11000, 30, 2], [28500, 64.9, 2],
+    [43000, 66, 5], [49000, 20, 5], [50000, 66, 5], [5000, 18, 4], [36000, 80, 3],
+  ];
+  const c: DesignColumns = {
+    n: rows.length,
+    continuous: [Float64Array.from(rows, (x) => x[0]!), Float64Array.from(rows, (x) => x[1]!)],
+    discrete: [Float64Array.from(rows, (x) => x[2]!)],
+  };
+  const compiled = (p: unknown) => { const r = compileProgram(p as Program); if (!r.ok) throw new Error('example'); return r.value; };
+  const base = compiled(exampleCopy());
+  const baseAtoms = atomColumns(base, c);
+
+  it('re-evaluates only the atom whose limit moved, with the verdicts of a fresh evaluation', () => {
+    const moves: Array<(p: ReturnType<typeof exampleCopy>) => void> = [
+      (p) => { p.rule.all[0].limit.table['1'] = 21000 * 1.05; },
+      (p) => { p.rule.all[0].limit.else = '(35000 + 7000 * (size - 3)) * 0.99'; },
+      (p) => { p.rule.all[1].any[0].limit = 65 * 0.99; },
+      (p) => { delete p.rule.all[0].limit.else; },
+    ];
+    for (const move of moves) {
+      const p = exampleCopy();
+      move(p);
+      const next = compiled(p);
+      const reused = atomColumns(next, c, baseAtoms);
+      const fresh = verdicts(next, c);
+      const got = verdictsFromAtoms(next, reused, c.n);
+      expect(Array.from(got.eligible)).toEqual(Array.from(fresh.eligible));
+      expect(Array.from(got.offerProbability)).toEqual(Array.from(fresh.offerProbability));
+      expect(got.undefinedRows).toEqual(fresh.undefinedRows);
+      const same = reused.truth.filter((t, i) => t === baseAtoms.truth[i]).length;
+      expect(same).toBe(next.atoms.length - 1); // every atom but the moved one taken as it was
+    }
+  });
+
+  it('tells apart atoms that differ only in a lookup entry, an infinite limit or a sign of zero', () => {
+    const p = exampleCopy();
+    p.rule.all[0].limit.table['2'] = 28001;
+    expect(atomKey(compiled(p).atoms[0]!)).not.toBe(atomKey(base.atoms[0]!));
+    const a = { ...base.atoms[1]!, margin: { k: 'const', v: Number.POSITIVE_INFINITY } } as Atom;
+    const b = { ...base.atoms[1]!, margin: { k: 'const', v: Number.NaN } } as Atom;
+    const z = { ...base.atoms[1]!, margin: { k: 'const', v: -0 } } as Atom;
+    const z0 = { ...base.atoms[1]!, margin: { k: 'const', v: 0 } } as Atom;
+    expect(new Set([a, b, z, z0].map(atomKey)).size).toBe(4);
   });
 });

@@ -114,6 +114,32 @@ describe('a job on a worker thread', () => {
   });
 });
 
+describe('a job worker kept warm for the next call (warmSpare)', () => {
+  const warmFlag = new URL('./fixtures/warm-flag-job-worker.mjs', import.meta.url);
+  const call = async (runner: WorkerRunner) => (await runner('study.check', { studyPath }, {})) as ApiResult<{ warm: boolean; threadId: number }>;
+
+  it('gives each call the thread started ahead of it, and starts the next one when the call ends', async () => {
+    const runner = createWorkerRunner({ workerUrl: warmFlag, warmSpare: true });
+    const first = await call(runner);
+    const second = await call(runner);
+    expect(first).toMatchObject({ ok: true, value: { warm: true } });
+    expect(second).toMatchObject({ ok: true, value: { warm: true } });
+    // still one call per thread: the spare taken by the first call is not the second's
+    if (first.ok && second.ok) expect(second.value.threadId).not.toBe(first.value.threadId);
+  });
+
+  it('starts no thread ahead unless asked (the default)', async () => {
+    expect(await call(createWorkerRunner({ workerUrl: warmFlag }))).toMatchObject({ ok: true, value: { warm: false } });
+  });
+
+  it('warms the real job worker up without changing its answer', async () => {
+    const warm = createWorkerRunner({ warmSpare: true });
+    await new Promise((r) => setTimeout(r, 200)); // the call arrives while the spare warms up
+    const [a, b] = [await callApi('study.check', { studyPath }, { runInWorker: warm }), await callApi('study.check', { studyPath }, { runInWorker })];
+    expect(a).toEqual(b);
+  });
+});
+
 describe('browser mode runs jobs on worker threads', () => {
   it('a job started over HTTP is answered, the server answering polls while it runs', async () => {
     const dir = scratch();

@@ -53,7 +53,19 @@ const whiteBackground = (color: string): Plugin => ({
   },
 });
 
-export async function renderChartPng(spec: ChartSpec, opts: ChartPngOptions): Promise<Buffer> {
+/**
+ * The chart drawn and its pixels read before this returns (synchronously); only the compression is
+ * left to the promise, so figures drawn one after another compress side by side.
+ */
+export function renderChartPng(spec: ChartSpec, opts: ChartPngOptions): Promise<Buffer> {
+  try {
+    return drawAndEncode(spec, opts);
+  } catch (e) {
+    return Promise.reject(e);
+  }
+}
+
+function drawAndEncode(spec: ChartSpec, opts: ChartPngOptions): Promise<Buffer> {
   setup();
   const scale = opts.scale ?? 2;
   if (!(opts.width > 0 && opts.height > 0 && scale > 0)) {

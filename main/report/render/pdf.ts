@@ -39,9 +39,34 @@ const MARGIN = { top: 58, bottom: 62, left: 62, right: 62 };
 const BODY_SIZE = 10;
 const PARA_GAP = 6;
 
+/**
+ * Each font file parsed once per process, shared by the memo's two documents (the page layout and
+ * the scratch one that measures) and by every later memo: pdfkit takes a parsed font in
+ * registerFont (PDFFontFactory.open accepts any object with a `layout` method) and builds each
+ * document's own subset from it, so the output is the same bytes; parsing the font tables was
+ * about a fifth of a memo's PDF time. The font is parsed by pdfkit's own loader, on a probe
+ * document that is never written; should a later pdfkit keep the parsed font elsewhere, the
+ * path is registered as before (each document parses it again).
+ */
+const parsedFonts = new Map<FontKey, object | string>();
+let probe: Pdf | null = null;
+
+function parsedFont(key: FontKey): object | string {
+  let font = parsedFonts.get(key);
+  if (font === undefined) {
+    const path = join(dejavuFontDir(), FONTS[key]);
+    probe ??= new PDFDocument({ autoFirstPage: false });
+    probe.registerFont(key, path);
+    probe.font(key);
+    const opened = (probe as unknown as { _font?: { font?: { layout?: unknown } } })._font?.font;
+    font = opened !== undefined && typeof opened.layout === 'function' ? opened : path;
+    parsedFonts.set(key, font);
+  }
+  return font;
+}
+
 function registerFonts(pdf: Pdf): void {
-  const dir = dejavuFontDir();
-  for (const [key, file] of Object.entries(FONTS)) pdf.registerFont(key, join(dir, file));
+  for (const key of Object.keys(FONTS) as FontKey[]) pdf.registerFont(key, parsedFont(key) as string);
 }
 
 function fontFor(style: TextStyle | undefined, condensed = false): FontKey {

@@ -4,7 +4,8 @@
 // Format: PNG specification (ISO/IEC 15948:2004): signature, IHDR (colour type 2, 8 bits), IDAT with
 // zlib-compressed scanlines using filter type 1 ("Sub", §9.2), IEND; chunk CRC-32 over type + data.
 
-import { crc32, deflateSync } from 'node:zlib';
+import { promisify } from 'node:util';
+import { crc32, deflate } from 'node:zlib';
 
 function chunk(type: string, data: Buffer): Buffer {
   const head = Buffer.alloc(8);
@@ -15,22 +16,39 @@ function chunk(type: string, data: Buffer): Buffer {
   return Buffer.concat([head, data, crc]);
 }
 
-/** rgba: width·height·4 bytes, row by row; alpha is dropped (the caller guarantees it is opaque). */
-export function encodeRgbPng(rgba: Uint8Array, width: number, height: number): Buffer {
+/**
+ * The scanlines of an RGB image with filter type 1 (Sub, §9.2) before each: each byte minus the same
+ * channel of the pixel to its left. rgba: width·height·4 bytes, row by row; alpha is dropped.
+ */
+export function subFilteredRgb(rgba: Uint8Array, width: number, height: number): Buffer {
   if (rgba.length !== width * height * 4) throw new RangeError(`expected ${width * height * 4} bytes of RGBA, got ${rgba.length}`);
-  const stride = width * 3 + 1;
-  const raw = Buffer.alloc(stride * height);
+  const raw = Buffer.allocUnsafe((width * 3 + 1) * height); // every byte is written below
+  let s = 0;
+  let o = 0;
   for (let y = 0; y < height; y++) {
-    const o = y * stride;
-    raw[o] = 1; // Sub: each byte minus the same channel of the pixel to its left
-    for (let x = 0; x < width; x++) {
-      const s = (y * width + x) * 4;
-      for (let c = 0; c < 3; c++) {
-        const left = x > 0 ? rgba[s - 4 + c]! : 0;
-        raw[o + 1 + x * 3 + c] = (rgba[s + c]! - left) & 0xff;
-      }
+    raw[o++] = 1;
+    let r0 = 0, g0 = 0, b0 = 0;
+    for (let x = 0; x < width; x++, s += 4) {
+      const r = rgba[s]!, g = rgba[s + 1]!, b = rgba[s + 2]!;
+      raw[o++] = (r - r0) & 0xff;
+      raw[o++] = (g - g0) & 0xff;
+      raw[o++] = (b - b0) & 0xff;
+      r0 = r; g0 = g; b0 = b;
     }
   }
+  return raw;
+}
+
+const deflateAsync = promisify(deflate);
+
+/**
+ * rgba: width·height·4 bytes, row by row; alpha is dropped (the caller guarantees it is opaque).
+ * The pixels are read before this returns (the caller may reuse them at once); the compression
+ * runs on libuv's thread pool, so several figures compress at the same time as the next is drawn.
+ * Same bytes as compressing on the calling thread: the same zlib at the same level.
+ */
+export async function encodeRgbPng(rgba: Uint8Array, width: number, height: number): Promise<Buffer> {
+  const idat = deflateAsync(subFilteredRgb(rgba, width, height), { level: 9 });
   const ihdr = Buffer.alloc(13);
   ihdr.writeUInt32BE(width, 0);
   ihdr.writeUInt32BE(height, 4);
@@ -40,7 +58,7 @@ export function encodeRgbPng(rgba: Uint8Array, width: number, height: number): B
   return Buffer.concat([
     Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]),
     chunk('IHDR', ihdr),
-    chunk('IDAT', deflateSync(raw, { level: 9 })),
+    chunk('IDAT', await idat),
     chunk('IEND', Buffer.alloc(0)),
   ]);
 }
