@@ -72,7 +72,7 @@ async function readHead(path: string, length: number): Promise<Buffer> {
   }
 }
 
-function fileProblem(err: unknown, path: string, fileName: string): Problem {
+export function fileProblem(err: unknown, path: string, fileName: string): Problem {
   const code = (err as { code?: unknown }).code;
   if (code === 'ENOENT' || code === 'ENOTDIR') return { path: fileName, message: `There is no file ${fileName} at ${path}. Check the file name and the folder (a path in a study file is relative to the study file).` };
   if (code === 'EACCES' || code === 'EPERM') return { path: fileName, message: `The file ${fileName} cannot be opened: this account is not allowed to read it. Copy it to a folder you own, or ask for read permission.` };

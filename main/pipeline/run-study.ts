@@ -120,7 +120,7 @@ export interface PreparedStudy {
 }
 
 /** The largest exclusion reasons, for a message ("1,204 HH_INCOME is not a number; 3 ..."). */
-function topReasons(excluded: ReadonlyArray<{ reason: string; count: number }>, max = 3): string {
+export function topReasons(excluded: ReadonlyArray<{ reason: string; count: number }>, max = 3): string {
   const sorted = [...excluded].sort((a, b) => b.count - a.count);
   const shown = sorted.slice(0, max).map((e) => `${e.count.toLocaleString('en-US')} ${e.reason}`);
   if (sorted.length > max) shown.push(`and ${sorted.length - max} other reason${sorted.length - max === 1 ? '' : 's'}`);
@@ -277,15 +277,7 @@ export async function runStudy(study: Study, options: RunOptions): Promise<Check
       joins: mapped.joins.map((j) => ({ ...j, sha256: read.joinHashes.get(j.source) ?? '' })),
       notes: mapped.notes,
     },
-    program: {
-      name: study.program.name,
-      unit: study.program.unit ?? 'unit',
-      definition: study.program,
-      wording: describeProgram(study.program),
-      offerWording: describeOffer(study.program.offer, study.program.unit ?? 'unit'),
-      offerKind: prepared.instrument.source === 'formula' ? 'deterministic' : 'lottery',
-      criteria: program.atoms.map((a) => ({ atom: a.index, path: a.path, description: describeCondition(a.condition, study.program), linear: a.linear, movesWithContinuous: a.dependsOnContinuous })),
-    },
+    program: programBlock(study, program, prepared.instrument.source),
     settings: {
       deltas: ps.deltas.slice(), draws: settings.draws, seed: settings.seed, smallCellMax: study.settings.smallCellMax,
       drawsUsed: ps.drawsUsed, replicates: ps.replicates, workers: null,
@@ -329,7 +321,20 @@ export async function runStudy(study: Study, options: RunOptions): Promise<Check
   };
 }
 
-function dedupe(ws: Warning[]): Warning[] {
+/** results.json `program`: the rule as run, in words, with its criteria. */
+export function programBlock(study: Study, program: CompiledProgram, instrument: 'formula' | 'recorded-decision'): Results['program'] {
+  return {
+    name: study.program.name,
+    unit: study.program.unit ?? 'unit',
+    definition: study.program,
+    wording: describeProgram(study.program),
+    offerWording: describeOffer(study.program.offer, study.program.unit ?? 'unit'),
+    offerKind: instrument === 'formula' ? 'deterministic' : 'lottery',
+    criteria: program.atoms.map((a) => ({ atom: a.index, path: a.path, description: describeCondition(a.condition, study.program), linear: a.linear, movesWithContinuous: a.dependsOnContinuous })),
+  };
+}
+
+export function dedupe(ws: Warning[]): Warning[] {
   const seen = new Set<string>();
   return ws.filter((w) => { const k = `${w.code}\u0000${w.message}`; if (seen.has(k)) return false; seen.add(k); return true; });
 }
