@@ -1,6 +1,7 @@
 // The study methods of the api: check a study, evaluate it, run the bundled demo. They adapt
 // files and the workspace to the pipeline (main/pipeline) and hold no analysis logic.
 
+import { statSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import type {
   ApiResult, CheckArgs, CheckReport, DemoArgs, EvaluateArgs, EvaluateReport, OutputFormat,
@@ -10,6 +11,8 @@ import { Cancelled, validateSettings } from '../design/propensity.ts';
 import { inputClashes } from '../output/input-clash.ts';
 import { writeRun } from '../pipeline/record.ts';
 import { prepareStudy, runStudy } from '../pipeline/run-study.ts';
+import { isStreamedStudy, streamStudy } from '../pipeline/stream-study.ts';
+import { writeOutputFiles } from '../output/write-files.ts';
 import { MEMO_FILE_NAMES } from '../report/memo-files.ts';
 import { describeProgram } from '../rules/wording.ts';
 import { studyFingerprint, withAbsolutePaths } from '../studyfile/fingerprint.ts';
@@ -88,6 +91,9 @@ export async function evaluateStudy(args: EvaluateArgs, ctx: HostContext = {}): 
   ];
   const early = inputClashes(resolve(args.outDir), ['results.json', 'units.csv', ...formats.map((f) => MEMO_FILE_NAMES[f])], inputs);
   if (early.length) return refuse(early);
+  if (isStreamedStudy(study.value, fileSize(resolve(loaded.value.baseDir, study.value.data.path)))) {
+    return evaluateStreamed(study.value, loaded.value.baseDir, args, ctx, inputs);
+  }
   let run;
   try {
     run = await runStudy(study.value, { baseDir: loaded.value.baseDir, ...ctx, ...(args.workers !== undefined ? { workers: args.workers } : {}) });
@@ -118,6 +124,35 @@ export async function evaluateStudy(args: EvaluateArgs, ctx: HostContext = {}): 
   }
   if (!written.ok) return refuse(written.problems);
   return { ok: true, value: { outDir: resolve(args.outDir), files: written.value.files, results: r.results, runId: written.value.runId, studySha256, timings: r.timings } };
+}
+
+function fileSize(path: string): number | null {
+  try {
+    return statSync(path).size;
+  } catch {
+    return null;
+  }
+}
+
+/**
+ * A study whose data file is streamed (main/pipeline/stream-study.ts): results.json only, its
+ * `streamed` block saying what was not computed and why no memo was written.
+ */
+async function evaluateStreamed(study: Study, baseDir: string, args: EvaluateArgs, ctx: HostContext, inputs: Array<{ path: string; role: string }>): Promise<ApiResult<EvaluateReport>> {
+  let run;
+  try {
+    run = await streamStudy(study, { baseDir, ...(ctx.onProgress ? { onProgress: ctx.onProgress } : {}), ...(ctx.signal ? { signal: ctx.signal } : {}) });
+  } catch (e) {
+    if (e instanceof Cancelled) return cancelled(e);
+    throw e;
+  }
+  if (!run.ok) return refuse(run.problems);
+  const outDir = resolve(args.outDir);
+  const clash = inputClashes(outDir, ['results.json'], inputs);
+  if (clash.length) return refuse(clash);
+  const written = writeOutputFiles(outDir, [{ name: 'results.json', content: JSON.stringify(run.value.results, null, 2) + '\n' }]);
+  if (!written.ok) return refuse(written.problems);
+  return { ok: true, value: { outDir, files: written.value, results: run.value.results, runId: null, studySha256: studyFingerprint(study, baseDir), timings: run.value.timings } };
 }
 
 /** The bundled sample study end to end. */

@@ -19,7 +19,7 @@ import { extname, isAbsolute, resolve } from 'node:path';
 import type { ExclusionReason, Fidelity, Results, ResultsCore, StreamedBlock, Warning } from '../contract/results.ts';
 import type { Study } from '../contract/study.ts';
 import { categoryDictionary, planStreamColumns, StreamMapper, type StreamGlobals } from '../data/columnar/stream-map.ts';
-import { openColumnar, isColumnarPath, DEFAULT_CHUNK_ROWS, type ColumnarSource } from '../data/columnar/duckdb-source.ts';
+import type { ColumnarSource } from '../data/columnar/duckdb-source.ts';
 import type { MappedData } from '../data/map-columns.ts';
 import { outcomeMissingNote } from '../data/map-columns.ts';
 import { computeApsBlock, type ApsColumns } from '../design/aps.ts';
@@ -42,12 +42,15 @@ import { SOFTWARE_VERSION } from '../store/software-version.ts';
 import { limitGapWarning, prepareUnits, type PreparedUnits } from './prepare-units.ts';
 import { columnSpec, dedupe, programBlock, topReasons } from './run-study.ts';
 
+/** Rows per chunk by default (common practice: large enough that DuckDB's 2,048-row vectors and the per-chunk work amortize, small enough to stay a few tens of MB). */
+export const STREAM_CHUNK_ROWS = 262_144;
+
 /** CSV files at least this large are streamed (common practice: beyond what a sheet of 1,048,576 rows usually weighs). */
 export const STREAM_CSV_BYTES = 512 * 1024 * 1024;
 
 /** Whether the study's data file takes the streamed path: Parquet always, CSV when asked for or large. */
 export function isStreamedStudy(study: Study, dataBytes: number | null): boolean {
-  if (isColumnarPath(study.data.path)) return true;
+  if (extname(study.data.path).toLowerCase() === '.parquet') return true;
   if (extname(study.data.path).toLowerCase() !== '.csv') return false;
   if (study.data.stream === true) return true;
   if (study.data.stream === false) return false;
@@ -174,6 +177,8 @@ export async function streamStudy(study: Study, options: StreamOptions): Promise
   }
   const path = isAbsolute(study.data.path) ? study.data.path : resolve(options.baseDir, study.data.path);
   const format = extname(path).toLowerCase() === '.csv' ? 'csv' : 'parquet';
+  // DuckDB (a native module) loads only when a streamed file is read: `check` and `--help` never load it.
+  const { openColumnar } = await import('../data/columnar/duckdb-source.ts');
   const opened = await openColumnar(path, { format, ...(options.signal ? { signal: options.signal } : {}) });
   if (!opened.ok) return opened;
   const source = opened.value;
@@ -204,7 +209,7 @@ async function streamOpened(study: Study, source: ColumnarSource, options: Strea
   };
   const program = lowerValidatedProgram(study.program);
   const keys = study.program.variables.map((v) => v.key);
-  const ctx: PassContext = { source, study, plan, globals, program, keys, chunkRows: options.chunkRows ?? DEFAULT_CHUNK_ROWS, signal: options.signal, onProgress: options.onProgress };
+  const ctx: PassContext = { source, study, plan, globals, program, keys, chunkRows: options.chunkRows ?? STREAM_CHUNK_ROWS, signal: options.signal, onProgress: options.onProgress };
   const settings = { deltas: study.settings.deltas, draws: study.settings.draws, seed: study.settings.seed };
   const checkedSettings = validateSettings(settings);
   if (!checkedSettings.ok) return checkedSettings;
@@ -327,7 +332,7 @@ async function streamOpened(study: Study, source: ColumnarSource, options: Strea
   });
   lap('pass 2');
 
-  const warnings: Warning[] = [];
+  const warnings: Warning[] = [{ code: 'streamed-file', message: `${info.fileName} was read in chunks (a file beyond one sheet): ${MEMO_NOTE} Not computed: ${NOT_COMPUTED.map((x) => x.key).join(', ')} (results.json "streamed").` }];
   const ruleExcluded = [...byRule.values()];
   for (const g of ruleExcluded) if (g.reason.startsWith('the limit of ')) warnings.push(limitGapWarning(g.reason, g.count));
   deltas.forEach((delta, k) => { if (apsUndefined[k]! > 0) warnings.push(apsUndefinedWarning(delta, apsUndefined[k]!)); });

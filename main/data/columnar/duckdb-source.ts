@@ -60,11 +60,6 @@ export const DEFAULT_CHUNK_ROWS = 262_144;
 const NUMERIC = /^(TINYINT|SMALLINT|INTEGER|BIGINT|HUGEINT|UTINYINT|USMALLINT|UINTEGER|UBIGINT|UHUGEINT|FLOAT|DOUBLE|REAL|DECIMAL.*)$/;
 const DATES = /^(DATE|TIMESTAMP.*)$/;
 
-/** Whether a data path is read by this module (Parquet always; CSV when the caller decides). */
-export function isColumnarPath(path: string): boolean {
-  return extname(path).toLowerCase() === '.parquet';
-}
-
 const quoteIdent = (name: string) => `"${name.replace(/"/g, '""')}"`;
 const quoteText = (text: string) => `'${text.replace(/'/g, "''")}'`;
 
