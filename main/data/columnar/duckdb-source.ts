@@ -40,11 +40,14 @@ export interface ColumnarInfo {
   columns: ColumnarColumn[];
 }
 
-/** How a column is wanted: as numbers (fast path for numeric types) or always as text. */
+/**
+ * How a column is wanted: as numbers (fast path for numeric types), as text classified cell by
+ * cell like a CSV field, or as labels (IDs, clusters: the text as written, never parsed).
+ */
 export interface ColumnRequest {
   /** The column's name exactly as the file writes it. */
   name: string;
-  as: 'number' | 'text';
+  as: 'number' | 'text' | 'label';
 }
 
 export interface ColumnChunk {
@@ -108,13 +111,13 @@ export class ColumnarSource {
     return this.info.columns.find((c) => c.name === name)?.type ?? 'VARCHAR';
   }
 
-  private selectExpression(req: ColumnRequest): { sql: string; kind: 'number' | 'bool' | 'date' | 'text' } {
+  private selectExpression(req: ColumnRequest): { sql: string; kind: 'number' | 'bool' | 'date' | 'text' | 'label' } {
     const col = quoteIdent(req.name);
     const type = this.typeOf(req.name);
     if (req.as === 'number' && NUMERIC.test(type)) return { sql: `CAST(${col} AS DOUBLE)`, kind: 'number' };
     if (req.as === 'number' && type === 'BOOLEAN') return { sql: `CAST(${col} AS DOUBLE)`, kind: 'bool' };
     if (req.as === 'number' && DATES.test(type)) return { sql: `CAST(date_diff('day', DATE '1970-01-01', CAST(${col} AS DATE)) AS DOUBLE)`, kind: 'date' };
-    return { sql: `CAST(${col} AS VARCHAR)`, kind: 'text' };
+    return { sql: `CAST(${col} AS VARCHAR)`, kind: req.as === 'label' ? 'label' : 'text' };
   }
 
   /**
@@ -141,7 +144,17 @@ export class ColumnarSource {
           const vector = chunk.getColumnVector(j);
           const out = current[j]!;
           const kind = exprs[j]!.kind;
-          if (kind === 'text') {
+          if (kind === 'label') {
+            const texts = out.texts!;
+            for (let t = 0; t < take; t++) {
+              const raw = vector.getItem(start + t) as string | null;
+              const r = fill + t;
+              const blank = raw === null || raw.trim() === '';
+              out.kinds[r] = blank ? CellKind.Blank : CellKind.Text;
+              out.numbers[r] = Number.NaN;
+              texts[r] = blank ? undefined : raw;
+            }
+          } else if (kind === 'text') {
             const texts = out.texts!;
             for (let t = 0; t < take; t++) {
               const raw = vector.getItem(start + t) as string | null;
@@ -150,7 +163,7 @@ export class ColumnarSource {
               parseCellText(raw, parsed);
               out.kinds[r] = parsed.kind;
               out.numbers[r] = parsed.value;
-              texts[r] = raw; // IDs and cluster labels compare as written (SQL finds repeats on the same text)
+              texts[r] = parsed.keepText ? raw : undefined;
             }
           } else {
             const present = kind === 'bool' ? CellKind.Bool : kind === 'date' ? CellKind.Date : CellKind.Number;
@@ -209,7 +222,7 @@ function allocate(requests: readonly ColumnRequest[], exprs: ReadonlyArray<{ kin
     letter: columnLetter(j),
     numbers: new Float64Array(rows),
     kinds: new Uint8Array(rows),
-    texts: exprs[j]!.kind === 'text' ? new Array<string | undefined>(rows) : null,
+    texts: exprs[j]!.kind === 'text' || exprs[j]!.kind === 'label' ? new Array<string | undefined>(rows) : null,
   }));
 }
 

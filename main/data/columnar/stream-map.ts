@@ -60,7 +60,7 @@ export function planStreamColumns(table: RawTable, spec: ColumnSpec): Checked<St
     headers.push(header);
     return requests.length - 1;
   };
-  const id = spec.id.trim() === '' ? -1 : want(spec.id, 'columns.id', 'text');
+  const id = spec.id.trim() === '' ? -1 : want(spec.id, 'columns.id', 'label');
   if (spec.id.trim() === '') problems.push({ path: 'columns.id', message: 'The unit ID column (columns.id) is empty. Give the name of the column that identifies each unit.' });
   const variables = spec.variables.map((v) => want(v.column, v.path, v.type === 'discrete' ? 'text' : 'number'));
   const outcomes = spec.outcomes.map((o) => want(o.column, o.path, 'number'));
@@ -71,7 +71,7 @@ export function planStreamColumns(table: RawTable, spec: ColumnSpec): Checked<St
     } else treatment = want(spec.treatment.column, spec.treatment.path, 'number');
   }
   const decision = spec.decision ? want(spec.decision.column, spec.decision.path, 'number') : null;
-  const cluster = spec.cluster ? want(spec.cluster.column, spec.cluster.path, 'text') : null;
+  const cluster = spec.cluster ? want(spec.cluster.column, spec.cluster.path, 'label') : null;
   const covariates = spec.covariates.map((c) => want(c.column, c.path, 'number'));
   const controls = spec.controls.map((c) => want(c.column, c.path, 'number'));
   if (problems.length > 0) return { ok: false, problems };
@@ -110,6 +110,12 @@ export function categoryDictionary(distinct: readonly string[]): string[] | null
   }
   if (labels.size === 0 || numeric > 0 || allBoolean) return null;
   return [...labels].sort((a, b) => (a < b ? -1 : a > b ? 1 : 0));
+}
+
+function compactCodes(codes: Int32Array, used: readonly number[], n: number): Int32Array {
+  const out = new Int32Array(n);
+  for (let u = 0; u < n; u++) out[u] = codes[used[u]!]!;
+  return out;
 }
 
 /** Maps chunks to MappedData (chunk-local units) and keeps the file-wide tallies. */
@@ -171,14 +177,16 @@ export class StreamMapper {
       if (!got.ok) return got.why === 'text' ? FAIL('not01') : got;
       return got.value === 0 || got.value === 1 ? got : FAIL('not01');
     };
-    const checks: Array<{ header: string; read: Reader; out: Float64Array }> = [];
+    // `plain`: a column whose plain numbers are read as they are (no range check), so a Number cell
+    // skips the reader (no allocation per cell on the common path).
+    const checks: Array<{ header: string; read: Reader; out: Float64Array; plain: RawColumn | null }> = [];
     const full = () => new Float64Array(n0);
     const variableOut = plan.variables.map(() => full());
-    plan.variables.forEach((k, v) => checks.push({ header: header(k), read: variableReaders[v]!, out: variableOut[v]! }));
+    plan.variables.forEach((k, v) => checks.push({ header: header(k), read: variableReaders[v]!, out: variableOut[v]!, plain: cols[k]! }));
     const treatmentOut = treatmentReader ? full() : null;
-    if (treatmentReader) checks.push({ header: header(plan.treatment!), read: treatmentReader, out: treatmentOut! });
+    if (treatmentReader) checks.push({ header: header(plan.treatment!), read: treatmentReader, out: treatmentOut!, plain: null });
     const decisionOut = decisionReader ? full() : null;
-    if (decisionReader) checks.push({ header: header(plan.decision!), read: decisionReader, out: decisionOut! });
+    if (decisionReader) checks.push({ header: header(plan.decision!), read: decisionReader, out: decisionOut!, plain: null });
     const covariateOut = plan.covariates.map(() => full());
     const controlOut = plan.controls.map(() => full());
     const extra: Array<{ header: string; col: RawColumn; out: Float64Array }> = [
@@ -203,6 +211,8 @@ export class StreamMapper {
         continue;
       }
       for (const check of checks) {
+        const plain = check.plain;
+        if (plain !== null && plain.kinds[r] === CellKind.Number) { check.out[r] = plain.numbers[r]!; continue; }
         const got = check.read(r);
         if (!got.ok) {
           this.exclude(rowNumberOf(r), failureText(got.why, check.header, idName));
@@ -226,6 +236,7 @@ export class StreamMapper {
         clusterOut![r] = code;
       }
       for (const e of extra) {
+        if (e.col.kinds[r] === CellKind.Number) { e.out[r] = e.col.numbers[r]!; continue; }
         const got = readNumber(e.col, r, true);
         if (!got.ok) {
           this.exclude(rowNumberOf(r), failureText(got.why, e.header, idName));
@@ -238,13 +249,22 @@ export class StreamMapper {
 
     const n = used.length;
     this.used += n;
-    const compact = (src: Float64Array) => Float64Array.from(used, (r) => src[r]!);
-    const rowNumbers = Int32Array.from(used, rowNumberOf);
+    // plain loops: typed-array `from` with a mapping function is far slower on a chunk
+    const compact = (src: Float64Array) => {
+      const out = new Float64Array(n);
+      for (let u = 0; u < n; u++) out[u] = src[used[u]!]!;
+      return out;
+    };
+    const rowNumbers = new Int32Array(n);
+    for (let u = 0; u < n; u++) rowNumbers[u] = rowNumberOf(used[u]!);
+    const ids = new Array<string>(n);
+    for (let u = 0; u < n; u++) ids[u] = displayText(idCol, used[u]!);
     const outcomes = plan.outcomes.map((k, o) => {
       const col = cols[k]!;
       const out = new Float64Array(n);
       const tally = this.outcomeMissing[o]!;
       for (let u = 0; u < n; u++) {
+        if (col.kinds[used[u]!] === CellKind.Number) { out[u] = col.numbers[used[u]!]!; continue; }
         const got = readNumber(col, used[u]!, true);
         if (got.ok) { out[u] = got.value; continue; }
         out[u] = Number.NaN;
@@ -258,7 +278,7 @@ export class StreamMapper {
     return {
       rowsRead: n0,
       n,
-      ids: used.map((r) => displayText(idCol, r)),
+      ids,
       rowNumbers,
       variables: variableOut.map(compact),
       dictionaries: globals.dictionaries,
@@ -266,7 +286,7 @@ export class StreamMapper {
       outcomeMissing: outcomes.map(() => ({ count: 0, rows: [] })),
       treatment: treatmentOut ? compact(treatmentOut) : null,
       decision: decisionOut ? compact(decisionOut) : null,
-      cluster: clusterOut ? { codes: Int32Array.from(used, (r) => clusterOut[r]!), labels: this.clusterLabels } : null,
+      cluster: clusterOut ? { codes: compactCodes(clusterOut, used, n), labels: this.clusterLabels } : null,
       covariates: covariateOut.map(compact),
       controls: controlOut.map(compact),
       excluded: [],
