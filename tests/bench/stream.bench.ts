@@ -12,11 +12,12 @@
 // Prints figures; asserts nothing. BENCH_QUICK=1 (or BENCH_STREAM_ROWS, BENCH_STREAM_SUBSET) scales down.
 
 import { spawnSync } from 'node:child_process';
-import { mkdtempSync, readFileSync, rmSync, statSync } from 'node:fs';
+import { mkdtempSync, rmSync, statSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { performance } from 'node:perf_hooks';
+import { peakResidentMB } from './peak-memory.ts';
 
 const QUICK = process.env.BENCH_QUICK === '1';
 const ROWS = Number(process.env.BENCH_STREAM_ROWS ?? (QUICK ? 200_000 : 20_000_000));
@@ -24,13 +25,6 @@ const SUBSET = Math.min(ROWS, Number(process.env.BENCH_STREAM_SUBSET ?? (QUICK ?
 const TARGET_MB = 2048;
 const COLUMNS = ['ID', 'INCOME', 'SIZE', 'AGE', 'REGION', 'RECEIVED', 'OUTCOME'];
 
-function peakResidentMB(): number {
-  try {
-    const m = /^VmHWM:\s+(\d+) kB/m.exec(readFileSync('/proc/self/status', 'utf8'));
-    if (m) return Number(m[1]) / 1024;
-  } catch { /* not Linux */ }
-  return process.resourceUsage().maxRSS / 1024;
-}
 
 interface Summary { estimate: number | null; se: number | null; fs: number | null; fsSe: number | null; n: number }
 interface Measured { seconds: number; peakMB: number; detail: string; byDelta?: Summary[]; timings?: Record<string, number> }
