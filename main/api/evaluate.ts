@@ -9,7 +9,7 @@ import type {
 import type { Study } from '../contract/study.ts';
 import { Cancelled, validateSettings } from '../design/propensity.ts';
 import { inputClashes } from '../output/input-clash.ts';
-import { writeRun } from '../pipeline/record.ts';
+import { referenceStreamedFile, writeRun } from '../pipeline/record.ts';
 import { prepareStudy, runStudy } from '../pipeline/run-study.ts';
 import { isStreamedStudy, streamStudy } from '../pipeline/stream-study.ts';
 import { writeOutputFiles } from '../output/write-files.ts';
@@ -147,12 +147,18 @@ async function evaluateStreamed(study: Study, baseDir: string, args: EvaluateArg
     throw e;
   }
   if (!run.ok) return refuse(run.problems);
+  const results = run.value.results;
+  if (args.workspacePath) {
+    const referenced = referenceStreamedFile(resolve(args.workspacePath), run.value.file, results.study.dataSha256);
+    if (!referenced.ok) return refuse(referenced.problems);
+    results.warnings.push({ code: 'streamed-run-not-stored', message: `The workspace records ${results.study.dataFile} by its path and SHA-256 (it is not copied in), but runs of streamed files are not stored as runs in this version: results.json is this run's record.` });
+  }
   const outDir = resolve(args.outDir);
   const clash = inputClashes(outDir, ['results.json'], inputs);
   if (clash.length) return refuse(clash);
-  const written = writeOutputFiles(outDir, [{ name: 'results.json', content: JSON.stringify(run.value.results, null, 2) + '\n' }]);
+  const written = writeOutputFiles(outDir, [{ name: 'results.json', content: JSON.stringify(results, null, 2) + '\n' }]);
   if (!written.ok) return refuse(written.problems);
-  return { ok: true, value: { outDir, files: written.value, results: run.value.results, runId: null, studySha256: studyFingerprint(study, baseDir), timings: run.value.timings } };
+  return { ok: true, value: { outDir, files: written.value, results, runId: null, studySha256: studyFingerprint(study, baseDir), timings: run.value.timings } };
 }
 
 /** The bundled sample study end to end. */

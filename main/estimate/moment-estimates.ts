@@ -6,7 +6,8 @@
 // the result. Pure.
 
 import { blankEstimate, estimateBase, estimateFromMoments, notIdentifiedWarning, sampleChecks, type ComparisonEstimate, type DeltaEstimate } from './aps-iv.ts';
-import { clustersSeen, createCoMoments, createOfferMeat, meatCovariance, solveMoments, type CoMoments, type MomentFit, type OfferMeat } from './cross-products.ts';
+import { balanceNotIdentifiedWarning, balanceSampleChecks, fillBalanceRow, fillJointEntry, type BalanceJoint, type BalanceRow } from './balance.ts';
+import { addRows, clustersSeen, createCoMoments, createOfferMeat, meatCovariance, solveMoments, type CoMoments, type MomentFit, type OfferMeat } from './cross-products.ts';
 import type { EstimateWarning } from './types.ts';
 
 /** One regression of m responses on [1, design...] over one sample, filled chunk by chunk. */
@@ -176,4 +177,71 @@ function comparisonFailure(n: number, label: string, what: string, message: stri
 /** Clusters in the meat of a fitted sample (for CR1 with at least 2). */
 export function meatClusters(s: MomentSample): number | null {
   return s.meat ? clustersSeen(s.meat) : null;
+}
+
+/** Balance at one delta (balance.ts): covariates on [1, APS, Z] over the boundary units, with group moments. */
+export interface BalanceSample {
+  delta: number;
+  sample: MomentSample;
+  /** Co-moments of the covariates among not-offered (0) and offered (1) boundary units. */
+  groups: [CoMoments, CoMoments];
+  /** Null when balance cannot be checked at this delta (warned); else whether CR1 applies. */
+  clustered: boolean | null;
+}
+
+export function createBalanceSample(delta: number, design: string[], covariates: string[], clusterCount: number | null): BalanceSample {
+  return { delta, sample: createMomentSample(design, covariates, clusterCount), groups: [createCoMoments(covariates.length), createCoMoments(covariates.length)], clustered: null };
+}
+
+/** Pass 1 for balance: the rows idx[0..count) of columns [APS, Z, covariates...]. */
+export function addBalanceRows(b: BalanceSample, columns: readonly Float64Array[], idx: Int32Array, count: number, clusters?: Int32Array): void {
+  addRows(b.sample.moments, columns, idx, count);
+  countSampleRows(b.sample, columns, idx, count, clusters);
+  const z = columns[1]!;
+  const covariates = columns.slice(2);
+  for (const g of [0, 1] as const) {
+    const rows = new Int32Array(count);
+    let m = 0;
+    for (let t = 0; t < count; t++) if (z[idx[t]!] === g) rows[m++] = idx[t]!;
+    addRows(b.groups[g], covariates, rows, m);
+  }
+}
+
+/** Between the passes: the sample checks (warnings pushed) and the fit. */
+export function balanceAfterPass1(b: BalanceSample, clusteredAsked: boolean, warnings: EstimateWarning[]): void {
+  const at = `At delta ${b.delta}`;
+  const checks = balanceSampleChecks(b.sample.moments.n, clusteredAsked ? clusterCount(b.sample) : null, at, warnings);
+  if (!checks.ok) return;
+  if (!fitSample(b.sample).identified) {
+    warnings.push(balanceNotIdentifiedWarning(at));
+    return;
+  }
+  b.clustered = checks.clustered;
+}
+
+/** After pass 2: the balance rows and the joint test at this delta (results.json `balance`, `balanceJoint`). */
+export function balanceAfterPass2(b: BalanceSample, level: number, clusteredAsked: boolean, warnings: EstimateWarning[]): { rows: BalanceRow[]; joint: BalanceJoint } {
+  const s = b.sample;
+  const n = s.moments.n;
+  const names = s.responses;
+  const rows: BalanceRow[] = names.map((covariate) => ({ covariate, delta: b.delta, n, diff: null, se: null, p: null, ci: null, standardizedDiff: null, meanOffered: null, meanNotOffered: null, clusters: null }));
+  const joint: BalanceJoint = { delta: b.delta, n, statistic: null, df: 0, p: null, tested: [], leftOut: [], variance: clusteredAsked ? 'CR1' : 'HC1', clusters: null };
+  if (b.clustered === null || names.length === 0) return { rows, joint };
+  const fit = s.fit!;
+  const g = b.clustered ? clusterCount(s) : null;
+  const { v } = meatCovariance(s.meat!, fit.k, b.clustered);
+  const m = names.length;
+  const [g0, g1] = b.groups;
+  rows.forEach((row, j) => {
+    fillBalanceRow(row, fit.coefZ[j]!, Math.sqrt(v[j * m + j]!), level, g, {
+      mean1: g1.n > 0 ? g1.mean[j]! : null,
+      mean0: g0.n > 0 ? g0.mean[j]! : null,
+      var1: g1.n > 1 ? g1.c[j * m + j]! / (g1.n - 1) : 0,
+      var0: g0.n > 1 ? g0.c[j * m + j]! / (g0.n - 1) : 0,
+    });
+  });
+  joint.variance = b.clustered ? 'CR1' : 'HC1';
+  joint.clusters = g;
+  fillJointEntry(joint, fit.coefZ, v, names, `At delta ${b.delta}`, warnings);
+  return { rows, joint };
 }

@@ -30,8 +30,8 @@ import { APS_NAME, apsUndefinedWarning, estimandNoteFor, missingOutcomeWarning, 
 import { boundaryComposition, describeAtom, type DeltaComposition } from '../estimate/composition.ts';
 import { addMeatRows, addRows } from '../estimate/cross-products.ts';
 import {
-  comparisonAfterPass1, comparisonAfterPass2, countSampleRows, createMomentSample, headlineAfterPass1, headlineAfterPass2,
-  type HeadlineContext, type MomentSample,
+  addBalanceRows, balanceAfterPass1, balanceAfterPass2, comparisonAfterPass1, comparisonAfterPass2, countSampleRows, createBalanceSample,
+  createMomentSample, headlineAfterPass1, headlineAfterPass2, type HeadlineContext, type MomentSample,
 } from '../estimate/moment-estimates.ts';
 import { holmByDelta } from '../estimate/multiplicity.ts';
 import { deltaSensitivity } from '../estimate/sensitivity.ts';
@@ -77,12 +77,12 @@ export interface StreamedRun {
 const refuse = (path: string, message: string): Checked<never> => ({ ok: false, problems: [{ path, message }] });
 
 const NOT_COMPUTED: StreamedBlock['notComputed'] = [
-  { key: 'balance', why: 'balance rows need each covariate regression on every boundary unit; not yet accumulated for streamed files' },
   { key: 'density', why: 'the density test on each margin needs the units near every limit at once' },
   { key: 'outcomes[].localLinear', why: 'the local-linear cross-check chooses its bandwidth from every unit at once' },
   { key: 'compliers', why: 'complier profiles are not yet accumulated for streamed files' },
   { key: 'thresholdChanges', why: 'small threshold changes recompute the APS for every unit at each change' },
   { key: 'outcomes[].byDelta[].wildBootstrap', why: 'the wild cluster bootstrap resamples every unit' },
+  { key: 'warnings (resolution)', why: 'whether an input is recorded more coarsely than the neighbourhood is judged from the spacing of all its values' },
   { key: 'units.csv', why: 'one row per unit of a file beyond one sheet is not written; the per-unit APS can be recomputed from the study and the seed' },
 ];
 
@@ -264,14 +264,17 @@ async function streamOpened(study: Study, source: ColumnarSource, options: Strea
   const headline = deltas.map(() => outcomes.map((_, o) => createMomentSample([APS_NAME, ...controlNames, offerName], responses(o), clusterCount)));
   const naive = outcomes.map((o) => createMomentSample([dName], [o.column], clusterCount));
   const noAps = outcomes.map((_, o) => createMomentSample([...controlNames, offerName], responses(o), clusterCount));
+  const covariateNames = c.covariates ?? [];
+  const balance = covariateNames.length ? deltas.map((delta) => createBalanceSample(delta, [APS_NAME, offerName], covariateNames, clusterCount)) : [];
   const boundaryCount = deltas.map(() => 0);
   const apsUndefined = deltas.map(() => 0);
   const missing = outcomes.map(() => 0);
-  const merged: { summary: DeltaSummary[] | null; composition: DeltaComposition[] | null } = { summary: null, composition: null };
+  const merged: { summary: DeltaSummary[] | null; composition: DeltaComposition[] | null; compositionWarnings: Warning[] } = { summary: null, composition: null, compositionWarnings: [] };
 
   type Visit = (s: MomentSample, columns: Float64Array[], idx: Int32Array, count: number, clusters: Int32Array | undefined) => void;
-  /** Every regression's rows in one chunk, handed to `visit`; pass 1 also counts. */
-  const visitChunk = (prepared: PreparedUnits, aps: ApsColumns, visit: Visit, counting: boolean) => {
+  type BalanceVisit = (b: (typeof balance)[number], columns: Float64Array[], idx: Int32Array, count: number, clusters: Int32Array | undefined) => void;
+  /** Every regression's rows in one chunk, handed to `visit` (balance's to `visitBalance`); pass 1 also counts. */
+  const visitChunk = (prepared: PreparedUnits, aps: ApsColumns, visit: Visit, visitBalance: BalanceVisit, counting: boolean) => {
     const data = prepared.data;
     const m = data.n;
     const z = prepared.z;
@@ -288,6 +291,11 @@ async function streamOpened(study: Study, source: ColumnarSource, options: Strea
         }
       });
     }
+    balance.forEach((b, k) => {
+      const a = aps.aps[k]!;
+      const count = rowsWhere(m, (r) => a[r]! > 0 && a[r]! < 1, idx);
+      visitBalance(b, [a, z, ...data.covariates], idx, count, clusters);
+    });
     outcomes.forEach((_, o) => {
       const y = data.outcomes[o]!;
       const tail = hasTreatment ? [y, d] : [y];
@@ -308,11 +316,13 @@ async function streamOpened(study: Study, source: ColumnarSource, options: Strea
   await pass(ctx, 'propensity', (prepared) => {
     const aps = apsOf(prepared);
     merged.summary = mergeSummary(merged.summary, summarize(program, aps));
-    merged.composition = mergeComposition(merged.composition, boundaryComposition(program, aps).byDelta);
+    const composed = boundaryComposition(program, aps);
+    if (merged.composition === null) merged.compositionWarnings = composed.warnings; // they depend on the program only
+    merged.composition = mergeComposition(merged.composition, composed.byDelta);
     visitChunk(prepared, aps, (s, columns, idx, count, clusters) => {
       addRows(s.moments, columns, idx, count);
       countSampleRows(s, columns, idx, count, clusters);
-    }, true);
+    }, addBalanceRows, true);
   });
   lap('pass 1');
 
@@ -323,12 +333,15 @@ async function streamOpened(study: Study, source: ColumnarSource, options: Strea
   const after1 = headline.map((row, k) => row.map((s, o) => headlineAfterPass1(s, headlineCtx(k, o))));
   const naiveDone = naive.map((s, o) => comparisonAfterPass1(s, outcomes[o]!.label, 'naive comparison'));
   const noApsDone = noAps.map((s, o) => comparisonAfterPass1(s, outcomes[o]!.label, 'comparison without the APS'));
+  const balanceWarnings: Warning[] = [];
+  for (const b of balance) balanceAfterPass1(b, clusterCount !== null, balanceWarnings);
 
   // ---- pass 2: the robust variances' meat ---------------------------------------------------
   await pass(ctx, 'estimate', (prepared) => {
-    visitChunk(prepared, apsOf(prepared), (s, columns, idx, count, clusters) => {
+    const meat: Visit = (s, columns, idx, count, clusters) => {
       if (s.fit && s.meat) addMeatRows(s.meat, s.fit, columns, idx, count, clusters);
-    }, false);
+    };
+    visitChunk(prepared, apsOf(prepared), meat, (b, columns, idx, count, clusters) => meat(b.sample, columns, idx, count, clusters), false);
   });
   lap('pass 2');
 
@@ -348,6 +361,8 @@ async function streamOpened(study: Study, source: ColumnarSource, options: Strea
     return { column: o.column, label: o.label, missing: missing[i]!, byDelta, naiveOls, ivNoControl, sensitivity, localLinear: null };
   });
 
+  const balanced = balance.map((b) => balanceAfterPass2(b, level, clusterCount !== null, balanceWarnings));
+  warnings.push(...balanceWarnings, ...merged.compositionWarnings);
   const notes = [...plan.notes];
   pass0.outcomeMissing.forEach((m, o) => {
     if (m.count > 0) notes.push(outcomeMissingNote(outcomes[o]!.label, m, pass0.used, m.causes));
@@ -389,8 +404,8 @@ async function streamOpened(study: Study, source: ColumnarSource, options: Strea
     },
     outcomes: outcomeResults,
     multipleOutcomes: outcomeResults.length > 1 ? holmByDelta(outcomeResults) : [],
-    balance: [],
-    balanceJoint: [],
+    balance: balanced.flatMap((b) => b.rows),
+    balanceJoint: balanced.map((b) => b.joint),
     compliers: [],
     density: [],
     thresholdChanges: null,

@@ -12,7 +12,7 @@
 // Prints figures; asserts nothing. BENCH_QUICK=1 (or BENCH_STREAM_ROWS, BENCH_STREAM_SUBSET) scales down.
 
 import { spawnSync } from 'node:child_process';
-import { mkdtempSync, rmSync, statSync } from 'node:fs';
+import { mkdirSync, mkdtempSync, rmSync, statSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
@@ -75,6 +75,7 @@ const rel = (a: number | null, b: number | null) => (a === null || b === null ? 
 async function main(): Promise<void> {
   const { duckdb, inventedRowsSql } = await import('../stream/helpers.ts');
   const keep = process.env.BENCH_STREAM_DIR;
+  if (keep) mkdirSync(keep, { recursive: true });
   const dir = keep ?? mkdtempSync(join(tmpdir(), 'fenceline-stream-bench-'));
   try {
     const big = join(dir, 'rebate.parquet');

@@ -20,6 +20,19 @@ function expectSameEstimates(a: Results, b: Results): void {
   expect(b.scales.map((s) => s.scale)).toEqual(a.scales.map((s) => s.scale));
   expect(b.design.byDelta).toEqual(a.design.byDelta);
   expect(b.settings.variance).toBe(a.settings.variance);
+  expect(b.balance.length).toBe(a.balance.length);
+  a.balance.forEach((x, j) => {
+    const y = b.balance[j]!;
+    expect([y.covariate, y.delta, y.n, y.clusters]).toEqual([x.covariate, x.delta, x.n, x.clusters]);
+    for (const key of ['diff', 'se', 'p', 'standardizedDiff', 'meanOffered', 'meanNotOffered'] as const) expect(relDiff(y[key], x[key])).toBeLessThan(TOL);
+  });
+  a.balanceJoint.forEach((x, k) => {
+    const y = b.balanceJoint[k]!;
+    expect([y.n, y.df, y.variance, y.clusters, y.tested]).toEqual([x.n, x.df, x.variance, x.clusters, x.tested]);
+    expect(relDiff(y.statistic, x.statistic)).toBeLessThan(TOL);
+    expect(relDiff(y.p, x.p)).toBeLessThan(TOL);
+  });
+  expect(b.findings.balance.verdict).toBe(a.findings.balance.verdict);
   a.outcomes.forEach((o, i) => {
     const s = b.outcomes[i]!;
     expect(s.missing).toBe(o.missing);
@@ -66,6 +79,8 @@ describe('streamed Parquet = in-memory .csv, invented file with a known effect',
     expect(stream.settings.variance).toBe('CR1');
     expect(stream.scales[0]!.source).toBe('sample-sd');
     expect(stream.outcomes[0]!.byDelta.every((b) => b.estimable && b.clusters === 97 && b.controls.includes('AGE'))).toBe(true);
+    expect(stream.balance.map((r) => r.covariate)).toEqual(['PRIOR', 'PRIOR', 'PRIOR']);
+    expect(stream.balanceJoint.every((j) => j.statistic !== null && j.variance === 'CR1')).toBe(true);
     expectSameEstimates(memory, stream);
   });
 
