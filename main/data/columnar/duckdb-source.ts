@@ -10,10 +10,11 @@
 // Refusals are one plain message naming the file and what to do; DuckDB's own errors are never
 // shown raw.
 
-import { createHash } from 'node:crypto';
+import { createHash, randomUUID } from 'node:crypto';
 import { createReadStream } from 'node:fs';
 import { stat } from 'node:fs/promises';
-import { basename, extname } from 'node:path';
+import { tmpdir } from 'node:os';
+import { basename, extname, join } from 'node:path';
 import { DuckDBInstance, type DuckDBConnection, type DuckDBResult } from '@duckdb/node-api';
 import type { Checked, Problem } from '../../rules/types.ts';
 import { newParsedCell, parseCellText } from '../cell-text.ts';
@@ -60,8 +61,14 @@ export interface ColumnChunk {
 
 export const DEFAULT_CHUNK_ROWS = 262_144;
 
+/** DuckDB's memory cap (common practice: leaves the rest of a 2 GB budget to the chunks and the JavaScript heap). */
+export const DUCKDB_MEMORY_LIMIT = '512MB';
+
 const NUMERIC = /^(TINYINT|SMALLINT|INTEGER|BIGINT|HUGEINT|UTINYINT|USMALLINT|UINTEGER|UBIGINT|UHUGEINT|FLOAT|DOUBLE|REAL|DECIMAL.*)$/;
 const DATES = /^(DATE|TIMESTAMP.*)$/;
+const INTEGERS = /^(TINYINT|SMALLINT|INTEGER|BIGINT|HUGEINT|UTINYINT|USMALLINT|UINTEGER|UBIGINT|UHUGEINT)$/;
+/** 2^53: whole numbers below it are exact as doubles (IEEE 754 binary64). */
+const EXACT_INTEGER_LIMIT = 9007199254740992;
 
 const quoteIdent = (name: string) => `"${name.replace(/"/g, '""')}"`;
 const quoteText = (text: string) => `'${text.replace(/'/g, "''")}'`;
@@ -111,10 +118,24 @@ export class ColumnarSource {
     return this.info.columns.find((c) => c.name === name)?.type ?? 'VARCHAR';
   }
 
+  /** Integer columns whose every value is exact as a double (labels read as numbers: no text to decode). */
+  private readonly exactIntegers = new Set<string>();
+
+  private async checkExactIntegers(requests: readonly ColumnRequest[]): Promise<void> {
+    for (const r of requests) {
+      if (r.as !== 'label' || !INTEGERS.test(this.typeOf(r.name)) || this.exactIntegers.has(r.name)) continue;
+      const reader = await this.connection.runAndReadAll(`SELECT coalesce(max(abs(CAST(${quoteIdent(r.name)} AS DOUBLE))), 0) < ${EXACT_INTEGER_LIMIT} AS exact FROM ${this.from}`);
+      if (reader.getColumnsJS()[0]?.[0] === true) this.exactIntegers.add(r.name);
+    }
+  }
+
   private selectExpression(req: ColumnRequest): { sql: string; kind: 'number' | 'bool' | 'date' | 'text' | 'label' } {
     const col = quoteIdent(req.name);
     const type = this.typeOf(req.name);
-    if (req.as === 'number' && NUMERIC.test(type)) return { sql: `CAST(${col} AS DOUBLE)`, kind: 'number' };
+    // A whole-number label reads as its number (String(17) is "17", as DuckDB writes it).
+    if (req.as === 'label' && this.exactIntegers.has(req.name)) return { sql: `CAST(${col} AS DOUBLE)`, kind: 'number' };
+    // A numeric column classified as text would give each cell's own number back: read it as numbers.
+    if ((req.as === 'number' || req.as === 'text') && NUMERIC.test(type)) return { sql: `CAST(${col} AS DOUBLE)`, kind: 'number' };
     if (req.as === 'number' && type === 'BOOLEAN') return { sql: `CAST(${col} AS DOUBLE)`, kind: 'bool' };
     if (req.as === 'number' && DATES.test(type)) return { sql: `CAST(date_diff('day', DATE '1970-01-01', CAST(${col} AS DATE)) AS DOUBLE)`, kind: 'date' };
     return { sql: `CAST(${col} AS VARCHAR)`, kind: req.as === 'label' ? 'label' : 'text' };
@@ -125,6 +146,7 @@ export class ColumnarSource {
    * Memory: one chunk of the requested columns at a time.
    */
   async *chunks(requests: readonly ColumnRequest[], chunkRows = DEFAULT_CHUNK_ROWS, signal?: AbortSignal): AsyncGenerator<ColumnChunk> {
+    await this.checkExactIntegers(requests);
     const exprs = requests.map((r) => this.selectExpression(r));
     const sql = `SELECT ${exprs.map((e, i) => `${e.sql} AS c${i}`).join(', ')} FROM ${this.from}`;
     const result: DuckDBResult = await this.connection.stream(sql);
@@ -149,7 +171,7 @@ export class ColumnarSource {
             for (let t = 0; t < take; t++) {
               const raw = vector.getItem(start + t) as string | null;
               const r = fill + t;
-              const blank = raw === null || raw.trim() === '';
+              const blank = raw === null || raw === '' || raw.trim() === '';
               out.kinds[r] = blank ? CellKind.Blank : CellKind.Text;
               out.numbers[r] = Number.NaN;
               texts[r] = blank ? undefined : raw;
@@ -257,7 +279,12 @@ export async function openColumnar(path: string, options: OpenOptions = {}): Pro
   let connection: DuckDBConnection | null = null;
   try {
     // Nothing leaves the machine: no extension is installed or loaded at run time.
-    instance = await DuckDBInstance.create(':memory:', { autoinstall_known_extensions: 'false', autoload_known_extensions: 'false', enable_external_access: 'true' });
+    // DuckDB's own memory is capped (finding repeated IDs among millions is a large hash table);
+    // beyond the cap it spills to a temporary folder of its own, removed when closed.
+    instance = await DuckDBInstance.create(':memory:', {
+      autoinstall_known_extensions: 'false', autoload_known_extensions: 'false', enable_external_access: 'true',
+      memory_limit: DUCKDB_MEMORY_LIMIT, temp_directory: join(tmpdir(), `fenceline-duckdb-${process.pid}-${randomUUID()}`),
+    });
     connection = await instance.connect();
     const described = await connection.runAndReadAll(`DESCRIBE SELECT * FROM ${from}`);
     const rows = described.getRowObjectsJS() as Array<{ column_name: unknown; column_type: unknown }>;

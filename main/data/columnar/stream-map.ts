@@ -177,16 +177,17 @@ export class StreamMapper {
       if (!got.ok) return got.why === 'text' ? FAIL('not01') : got;
       return got.value === 0 || got.value === 1 ? got : FAIL('not01');
     };
-    // `plain`: a column whose plain numbers are read as they are (no range check), so a Number cell
-    // skips the reader (no allocation per cell on the common path).
-    const checks: Array<{ header: string; read: Reader; out: Float64Array; plain: RawColumn | null }> = [];
+    // `plain`: a column whose Number cells are taken as they are when `accept` says so, skipping the
+    // reader (no allocation per cell on the common path); anything else goes through the reader.
+    const checks: Array<{ header: string; read: Reader; out: Float64Array; plain: RawColumn | null; accept: (v: number) => boolean }> = [];
+    const any = () => true;
     const full = () => new Float64Array(n0);
     const variableOut = plan.variables.map(() => full());
-    plan.variables.forEach((k, v) => checks.push({ header: header(k), read: variableReaders[v]!, out: variableOut[v]!, plain: cols[k]! }));
+    plan.variables.forEach((k, v) => checks.push({ header: header(k), read: variableReaders[v]!, out: variableOut[v]!, plain: cols[k]!, accept: any }));
     const treatmentOut = treatmentReader ? full() : null;
-    if (treatmentReader) checks.push({ header: header(plan.treatment!), read: treatmentReader, out: treatmentOut!, plain: null });
+    if (treatmentReader) checks.push({ header: header(plan.treatment!), read: treatmentReader, out: treatmentOut!, plain: cols[plan.treatment!]!, accept: (v) => v >= 0 && v < Infinity });
     const decisionOut = decisionReader ? full() : null;
-    if (decisionReader) checks.push({ header: header(plan.decision!), read: decisionReader, out: decisionOut!, plain: null });
+    if (decisionReader) checks.push({ header: header(plan.decision!), read: decisionReader, out: decisionOut!, plain: cols[plan.decision!]!, accept: (v) => v === 0 || v === 1 });
     const covariateOut = plan.covariates.map(() => full());
     const controlOut = plan.controls.map(() => full());
     const extra: Array<{ header: string; col: RawColumn; out: Float64Array }> = [
@@ -197,22 +198,24 @@ export class StreamMapper {
     const clusterOut = clusterCol ? new Int32Array(n0) : null;
 
     const used: number[] = [];
+    const checkRepeats = globals.repeatedIds.size > 0;
     const rowNumberOf = (r: number) => chunk.offset + r + globals.firstRowNumber;
     rows: for (let r = 0; r < n0; r++) {
       this.rowsRead++;
       const kind = idCol.kinds[r];
-      const key = kind === CellKind.Blank || kind === CellKind.Error ? '' : displayText(idCol, r);
+      // the ID's text is made only when some ID repeats (a plain number or label is never blank)
+      const key = kind === CellKind.Blank || kind === CellKind.Error ? '' : checkRepeats ? displayText(idCol, r) : '-';
       if (key === '') {
         this.exclude(rowNumberOf(r), kind === CellKind.Error ? `${idName} holds an Excel error value` : `${idName} is blank`);
         continue;
       }
-      if (globals.repeatedIds.has(key)) {
+      if (checkRepeats && globals.repeatedIds.has(key)) {
         this.exclude(rowNumberOf(r), `duplicate ${idName}`);
         continue;
       }
       for (const check of checks) {
         const plain = check.plain;
-        if (plain !== null && plain.kinds[r] === CellKind.Number) { check.out[r] = plain.numbers[r]!; continue; }
+        if (plain !== null && plain.kinds[r] === CellKind.Number && check.accept(plain.numbers[r]!)) { check.out[r] = plain.numbers[r]!; continue; }
         const got = check.read(r);
         if (!got.ok) {
           this.exclude(rowNumberOf(r), failureText(got.why, check.header, idName));
@@ -257,8 +260,10 @@ export class StreamMapper {
     };
     const rowNumbers = new Int32Array(n);
     for (let u = 0; u < n; u++) rowNumbers[u] = rowNumberOf(used[u]!);
-    const ids = new Array<string>(n);
-    for (let u = 0; u < n; u++) ids[u] = displayText(idCol, used[u]!);
+    // IDs are written out only where a unit is listed: fidelity's disagreeing units (with a
+    // decision column); otherwise they stay empty text (no per-row string on the common path).
+    const ids = new Array<string>(n).fill('');
+    if (plan.decision !== null) for (let u = 0; u < n; u++) ids[u] = displayText(idCol, used[u]!);
     const outcomes = plan.outcomes.map((k, o) => {
       const col = cols[k]!;
       const out = new Float64Array(n);
