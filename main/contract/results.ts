@@ -256,8 +256,9 @@ export interface StreamedBlock {
   passes: number;
   /** The parts of results.json that a streamed run leaves empty, each with why. */
   notComputed: Array<{ key: string; why: string }>;
-  /** Figures computed on a seeded subsample instead of every unit: which, and its size (none yet). */
-  subsample: { size: number; seed: number; figures: string[] } | null;
+  /** Checks computed on a seeded uniform subsample of the units used (reservoir sampling, Vitter 1985):
+   * its size, out of how many units, the seed, which results keys come from it, and whether it is every unit. */
+  subsample: { size: number; of: number; seed: number; figures: string[]; every: boolean } | null;
   /** Which outputs were written (results.json only) and why the memo was not. */
   note: string;
 }

@@ -29,6 +29,9 @@ import { createWelford, scalesFromSd, welfordAdd, welfordSd } from '../design/sc
 import { APS_NAME, apsUndefinedWarning, estimandNoteFor, missingOutcomeWarning, type ComparisonEstimate, type DeltaEstimate } from '../estimate/aps-iv.ts';
 import { boundaryComposition, describeAtom, type DeltaComposition } from '../estimate/composition.ts';
 import { addMeatRows, addRows } from '../estimate/cross-products.ts';
+import { densityChecksForProgram } from '../estimate/density.ts';
+import { singleCutoff, tryLocalLinear } from '../estimate/local-linear.ts';
+import { createReservoir, offerRows, reservoirColumns } from '../estimate/reservoir.ts';
 import {
   addBalanceRows, balanceAfterPass1, balanceAfterPass2, comparisonAfterPass1, comparisonAfterPass2, countSampleRows, createBalanceSample,
   createMomentSample, headlineAfterPass1, headlineAfterPass2, type HeadlineContext, type MomentSample,
@@ -63,6 +66,8 @@ export interface StreamOptions {
   signal?: AbortSignal;
   /** Rows per chunk (default 262,144). */
   chunkRows?: number;
+  /** Units in the seeded subsample for the density tests and the local-linear cross-check (default 200,000). */
+  subsample?: number;
 }
 
 export interface StreamedRun {
@@ -77,14 +82,15 @@ export interface StreamedRun {
 const refuse = (path: string, message: string): Checked<never> => ({ ok: false, problems: [{ path, message }] });
 
 const NOT_COMPUTED: StreamedBlock['notComputed'] = [
-  { key: 'density', why: 'the density test on each margin needs the units near every limit at once' },
-  { key: 'outcomes[].localLinear', why: 'the local-linear cross-check chooses its bandwidth from every unit at once' },
   { key: 'compliers', why: 'complier profiles are not yet accumulated for streamed files' },
   { key: 'thresholdChanges', why: 'small threshold changes recompute the APS for every unit at each change' },
   { key: 'outcomes[].byDelta[].wildBootstrap', why: 'the wild cluster bootstrap resamples every unit' },
   { key: 'warnings (resolution)', why: 'whether an input is recorded more coarsely than the neighbourhood is judged from the spacing of all its values' },
   { key: 'units.csv', why: 'one row per unit of a file beyond one sheet is not written; the per-unit APS can be recomputed from the study and the seed' },
 ];
+
+/** Units kept for the checks that need them at once (common practice: enough for the density test's bins and the local-linear bandwidth). */
+export const STREAM_SUBSAMPLE = 200_000;
 
 const MEMO_NOTE = 'memo formats for streamed files: not written in this version. results.json holds every estimate (effect, first stage, reduced form, HC1 or CR1 standard errors, Anderson–Rubin set, tF interval) for every outcome and delta; the memo\'s figures need per-unit columns, which a streamed run does not keep.';
 
@@ -311,11 +317,22 @@ async function streamOpened(study: Study, source: ColumnarSource, options: Strea
     });
   };
   const apsOf = (prepared: PreparedUnits) => computeApsBlock(program, prepared.cols, scaleValues, settings, points);
+  // The subsample for the checks that need the units at once: [continuous..., discrete..., outcomes..., Z, D?, cluster?].
+  const subsampleSize = options.subsample ?? STREAM_SUBSAMPLE;
+  const reservoir = createReservoir(subsampleSize, program.continuous.length + program.discrete.length + outcomes.length + 1 + (hasTreatment ? 1 : 0) + (clusterCount !== null ? 1 : 0), settings.seed);
+  const offerToReservoir = (prepared: PreparedUnits) => {
+    const data = prepared.data;
+    offerRows(reservoir, [
+      ...prepared.cols.continuous, ...prepared.cols.discrete, ...data.outcomes, prepared.z,
+      ...(hasTreatment ? [data.treatment!] : []), ...(clusterCount !== null ? [Float64Array.from(data.cluster!.codes)] : []),
+    ], data.n);
+  };
 
   // ---- pass 1: APS and cross-products -------------------------------------------------------
   await pass(ctx, 'propensity', (prepared) => {
     const aps = apsOf(prepared);
     merged.summary = mergeSummary(merged.summary, summarize(program, aps));
+    offerToReservoir(prepared);
     const composed = boundaryComposition(program, aps);
     if (merged.composition === null) merged.compositionWarnings = composed.warnings; // they depend on the program only
     merged.composition = mergeComposition(merged.composition, composed.byDelta);
@@ -358,11 +375,37 @@ async function streamOpened(study: Study, source: ColumnarSource, options: Strea
     for (const w of [...naiveOls.warnings, ...ivNoControl.warnings, ...byDelta.flatMap((b) => b.warnings)]) warnings.push(w);
     const sensitivity = deltaSensitivity(o.column, byDelta);
     warnings.push(...sensitivity.warnings);
-    return { column: o.column, label: o.label, missing: missing[i]!, byDelta, naiveOls, ivNoControl, sensitivity, localLinear: null };
+    return { column: o.column, label: o.label, missing: missing[i]!, byDelta, naiveOls, ivNoControl, sensitivity, localLinear: null as (typeof localLinear)[number] };
   });
 
   const balanced = balance.map((b) => balanceAfterPass2(b, level, clusterCount !== null, balanceWarnings));
-  warnings.push(...balanceWarnings, ...merged.compositionWarnings);
+
+  // ---- the checks on the subsample: density at each limit, the local-linear cross-check ------
+  const sample = reservoirColumns(reservoir);
+  const m = sample[0]?.length ?? 0;
+  let at = 0;
+  const take = (count: number) => { const out = sample.slice(at, at + count); at += count; return out; };
+  const sampleCols = { n: m, continuous: take(program.continuous.length), discrete: take(program.discrete.length) };
+  const sampleOutcomes = take(outcomes.length);
+  const [sampleZ] = take(1);
+  const sampleD = hasTreatment ? take(1)[0] : undefined;
+  const sampleClusters = clusterCount !== null ? Int32Array.from(take(1)[0]!) : undefined;
+  const density = densityChecksForProgram(program, sampleCols);
+  const checkWarnings: Warning[] = [];
+  for (const d of density) checkWarnings.push(...d.warnings.map((w) => ({ ...w, message: `${d.description}: ${w.message}` })));
+  const cutoff = singleCutoff(program);
+  const localLinear = outcomes.map((o, i) => {
+    if (!cutoff.applicable) return null;
+    const check = tryLocalLinear({
+      running: sampleCols.continuous[cutoff.variable]!, cutoff: cutoff.cutoff, outcome: sampleOutcomes[i]!, offer: sampleZ!,
+      ...(sampleD ? { treatment: sampleD } : {}), ...(sampleClusters ? { clusters: sampleClusters } : {}),
+    });
+    if (check.ok) { checkWarnings.push(...check.value.warnings); return check.value; }
+    checkWarnings.push({ code: 'local-linear-not-estimable', message: `Outcome "${o.label}": ${check.reason}` });
+    return null;
+  });
+  outcomeResults.forEach((o, i) => { o.localLinear = localLinear[i]!; });
+  warnings.push(...balanceWarnings, ...merged.compositionWarnings, ...checkWarnings);
   const notes = [...plan.notes];
   pass0.outcomeMissing.forEach((m, o) => {
     if (m.count > 0) notes.push(outcomeMissingNote(outcomes[o]!.label, m, pass0.used, m.causes));
@@ -371,7 +414,11 @@ async function streamOpened(study: Study, source: ColumnarSource, options: Strea
   const composed: DeltaComposition[] = (merged.composition ?? []).map((d) => ({ ...d, atoms: d.atoms.map((a) => ({ ...a, share: d.boundary > 0 ? a.straddling / d.boundary : 0 })) }));
   const drawsUsed = points.replicates * points.perReplicate;
   const { ifEligible, ifIneligible } = program.offer;
-  const streamed: StreamedBlock = { format: info.format, chunkRows: ctx.chunkRows, passes: 3, notComputed: NOT_COMPUTED, subsample: null, note: MEMO_NOTE };
+  const figures = ['density', ...(cutoff.applicable ? ['outcomes[].localLinear'] : [])];
+  const streamed: StreamedBlock = {
+    format: info.format, chunkRows: ctx.chunkRows, passes: 3, notComputed: NOT_COMPUTED,
+    subsample: { size: m, of: n, seed: settings.seed, figures, every: m === n }, note: MEMO_NOTE,
+  };
   const results: Results = withFindings<ResultsCore & { streamed: StreamedBlock }>({
     fenceline: 1,
     version: SOFTWARE_VERSION,
@@ -407,9 +454,9 @@ async function streamOpened(study: Study, source: ColumnarSource, options: Strea
     balance: balanced.flatMap((b) => b.rows),
     balanceJoint: balanced.map((b) => b.joint),
     compliers: [],
-    density: [],
+    density,
     thresholdChanges: null,
-    localLinearNote: 'The local-linear cross-check was not run: the data file was streamed, and the check chooses its bandwidth from every unit at once.',
+    localLinearNote: cutoff.applicable ? null : `The local-linear cross-check applies to one running variable with one deterministic cut-off; here ${cutoff.reason}.`,
     warnings: dedupe(warnings),
     streamed,
   });

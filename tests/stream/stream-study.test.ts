@@ -33,6 +33,15 @@ function expectSameEstimates(a: Results, b: Results): void {
     expect(relDiff(y.p, x.p)).toBeLessThan(TOL);
   });
   expect(b.findings.balance.verdict).toBe(a.findings.balance.verdict);
+  // With every unit in the subsample (fewer than 200,000), the density tests and the local-linear
+  // cross-check see the same units in the same order as in memory.
+  expect(b.streamed?.subsample?.every).toBe(true);
+  expect(b.density.map((d) => [d.path, d.n])).toEqual(a.density.map((d) => [d.path, d.n]));
+  a.density.forEach((x, j) => {
+    expect(relDiff(b.density[j]!.logDifference, x.logDifference)).toBeLessThan(TOL);
+    expect(relDiff(b.density[j]!.p, x.p)).toBeLessThan(TOL);
+  });
+  expect(b.localLinearNote).toBe(a.localLinearNote);
   a.outcomes.forEach((o, i) => {
     const s = b.outcomes[i]!;
     expect(s.missing).toBe(o.missing);
@@ -56,6 +65,12 @@ function expectSameEstimates(a: Results, b: Results): void {
       expect(relDiff(y.baseline?.mean, x.baseline?.mean)).toBeLessThan(TOL);
       expect(y.controls).toEqual(x.controls);
     });
+    expect(s.localLinear === null).toBe(o.localLinear === null);
+    if (o.localLinear && s.localLinear) {
+      expect(relDiff(s.localLinear.bandwidth, o.localLinear.bandwidth)).toBeLessThan(TOL);
+      expect(relDiff(s.localLinear.estimate, o.localLinear.estimate)).toBeLessThan(TOL);
+      expect(relDiff(s.localLinear.se, o.localLinear.se)).toBeLessThan(TOL);
+    }
   });
 }
 
@@ -100,7 +115,8 @@ describe('streamed Parquet = in-memory .csv, invented file with a known effect',
   });
 
   it('says what a streamed run does not compute', () => {
-    expect(stream.streamed?.notComputed.map((x) => x.key)).toContain('density');
+    expect(stream.streamed?.notComputed.map((x) => x.key)).toContain('compliers');
+    expect(stream.streamed?.subsample).toEqual({ size: stream.study.rowsUsed, of: stream.study.rowsUsed, seed: 7, figures: ['density'], every: true });
     expect(stream.streamed?.note).toMatch(/^memo formats for streamed files/);
     expect(stream.warnings[0]!.code).toBe('streamed-file');
   });
@@ -109,6 +125,21 @@ describe('streamed Parquet = in-memory .csv, invented file with a known effect',
     const other = await streamed(join(dir, 'parquet.json'), 50_000);
     if (!other.ok) throw new Error(JSON.stringify(other.problems));
     expectSameEstimates(stream, other.value.results);
+  }, 120_000);
+
+  it('gives the local-linear cross-check of a single cut-off (every unit in the subsample) as in memory', async () => {
+    const single = (path: string) => {
+      const study = inventedStudy(path);
+      study.program.rule = { value: 'income', op: '<=', limit: 26000 } as never;
+      return study;
+    };
+    const a = await inMemory(writeStudy(dir, 'single-csv.json', single('rebate.csv')));
+    const run = await streamed(writeStudy(dir, 'single-parquet.json', single('rebate.parquet')), 7_777);
+    if (!run.ok) throw new Error(JSON.stringify(run.problems));
+    const b = run.value.results;
+    expect(a.outcomes[0]!.localLinear).not.toBeNull();
+    expect(b.streamed?.subsample?.figures).toEqual(['density', 'outcomes[].localLinear']);
+    expectSameEstimates(a, b);
   }, 120_000);
 
   it('refuses a missing column with one message naming the file and the closest column', async () => {
