@@ -11,7 +11,7 @@ import { Cancelled, validateSettings } from '../design/propensity.ts';
 import { inputClashes } from '../output/input-clash.ts';
 import { referenceStreamedFile, writeRun } from '../pipeline/record.ts';
 import { prepareStudy, runStudy } from '../pipeline/run-study.ts';
-import { isStreamedStudy, streamStudy } from '../pipeline/stream-study.ts';
+import { checkStreamed, isStreamedStudy, streamStudy } from '../pipeline/stream-study.ts';
 import { writeOutputFiles } from '../output/write-files.ts';
 import { MEMO_FILE_NAMES } from '../report/memo-files.ts';
 import { describeProgram } from '../rules/wording.ts';
@@ -34,6 +34,7 @@ export async function checkStudy(args: CheckArgs, ctx: HostContext = {}): Promis
 
 /** Read, map and prepare a validated study's data (the same stages as evaluate) and report what will be used, estimating nothing. */
 export async function checkValidatedStudy(study: Study, baseDir: string, ctx: CallContext = {}): Promise<ApiResult<CheckReport>> {
+  if (isStreamedStudy(study, fileSize(resolve(baseDir, study.data.path)))) return checkStreamedStudy(study, baseDir, ctx);
   let ready;
   try {
     ready = await prepareStudy(study, { baseDir, ...ctx });
@@ -124,6 +125,26 @@ export async function evaluateStudy(args: EvaluateArgs, ctx: HostContext = {}): 
   }
   if (!written.ok) return refuse(written.problems);
   return { ok: true, value: { outDir: resolve(args.outDir), files: written.value.files, results: r.results, runId: written.value.runId, studySha256, timings: r.timings } };
+}
+
+/** `check` on a streamed file: its first pass only (map, prepare, count), estimating nothing. */
+async function checkStreamedStudy(study: Study, baseDir: string, ctx: CallContext): Promise<ApiResult<CheckReport>> {
+  let checked;
+  try {
+    checked = await checkStreamed(study, { baseDir, ...(ctx.onProgress ? { onProgress: ctx.onProgress } : {}), ...(ctx.signal ? { signal: ctx.signal } : {}) });
+  } catch (e) {
+    if (e instanceof Cancelled) return cancelled(e);
+    throw e;
+  }
+  if (!checked.ok) return refuse(checked.problems);
+  const c = checked.value;
+  return {
+    ok: true,
+    value: {
+      title: study.title, dataFile: c.dataFile, sheet: null, rowsRead: c.rowsRead, rowsUsed: c.rowsUsed, rowsExcluded: c.rowsExcluded,
+      outcomesMissing: c.outcomesMissing, fidelity: c.fidelity, eligible: c.eligible, notes: c.notes, ruleWording: describeProgram(study.program),
+    },
+  };
 }
 
 function fileSize(path: string): number | null {

@@ -173,11 +173,8 @@ function rowsWhere(n: number, keep: (r: number) => boolean, out: Int32Array): nu
   return count;
 }
 
-/** Run a validated study whose data file is streamed. Input problems come back as values; faults throw. */
-export async function streamStudy(study: Study, options: StreamOptions): Promise<Checked<StreamedRun>> {
-  const timings: Record<string, number> = {};
-  let t = performance.now();
-  const lap = (name: string) => { const now = performance.now(); timings[name] = Math.round(now - t); t = now; };
+/** Open the study's streamed file (refusing what a streamed file cannot do) and run `work` on it; the file is closed after. */
+async function withStreamedFile<T>(study: Study, options: StreamOptions, work: (source: ColumnarSource) => Promise<Checked<T>>): Promise<Checked<T>> {
   if ((study.data.join ?? []).length > 0) {
     return refuse('data.join', 'Joined files (data.join) cannot be read with a streamed data file in this version. Put the columns the study needs into one Parquet file (a database or DuckDB can join them), or use a sheet-sized .xlsx or .csv.');
   }
@@ -187,15 +184,58 @@ export async function streamStudy(study: Study, options: StreamOptions): Promise
   const { openColumnar } = await import('../data/columnar/duckdb-source.ts');
   const opened = await openColumnar(path, { format, ...(options.signal ? { signal: options.signal } : {}) });
   if (!opened.ok) return opened;
-  const source = opened.value;
   try {
-    return await streamOpened(study, source, options, timings, lap);
+    return await work(opened.value);
   } finally {
-    source.close();
+    opened.value.close();
   }
 }
 
-async function streamOpened(study: Study, source: ColumnarSource, options: StreamOptions, timings: Record<string, number>, lap: (name: string) => void): Promise<Checked<StreamedRun>> {
+/** Run a validated study whose data file is streamed. Input problems come back as values; faults throw. */
+export async function streamStudy(study: Study, options: StreamOptions): Promise<Checked<StreamedRun>> {
+  const timings: Record<string, number> = {};
+  let t = performance.now();
+  const lap = (name: string) => { const now = performance.now(); timings[name] = Math.round(now - t); t = now; };
+  return withStreamedFile(study, options, (source) => streamOpened(study, source, options, timings, lap));
+}
+
+/** What `check` reports for a streamed file: pass 0 only (the same stages as evaluate's first pass). */
+export interface StreamedCheck {
+  dataFile: string;
+  rowsRead: number;
+  rowsUsed: number;
+  rowsExcluded: ExclusionReason[];
+  outcomesMissing: Array<{ column: string; count: number }>;
+  fidelity: Fidelity | null;
+  eligible: number;
+  notes: Array<{ code: string; message: string }>;
+}
+
+export async function checkStreamed(study: Study, options: StreamOptions): Promise<Checked<StreamedCheck>> {
+  return withStreamedFile(study, options, async (source) => {
+    const ctx = await passContext(study, source, options);
+    if (!ctx.ok) return ctx;
+    const first = await firstPass(ctx.value);
+    if (!first.ok) return first;
+    const f = first.value;
+    return {
+      ok: true,
+      value: {
+        dataFile: source.info.fileName,
+        rowsRead: f.mapper.rowsRead,
+        rowsUsed: f.n,
+        rowsExcluded: [...f.mapper.excluded(), ...f.byRule.values()],
+        outcomesMissing: study.columns.outcomes.map((o, i) => ({ column: o.column, count: f.missing[i]! })),
+        fidelity: f.fidelity,
+        eligible: f.eligible,
+        notes: [...ctx.value.plan.notes, ...f.notes],
+      },
+    };
+  });
+}
+
+/** The study's columns found in the file, what holds over the whole file, the compiled rule. */
+async function passContext(study: Study, source: ColumnarSource, options: StreamOptions): Promise<Checked<PassContext>> {
   const info = source.info;
   const spec = columnSpec(study);
   const planned = planStreamColumns(source.headerTable(), spec);
@@ -215,40 +255,77 @@ async function streamOpened(study: Study, source: ColumnarSource, options: Strea
   };
   const program = lowerValidatedProgram(study.program);
   const keys = study.program.variables.map((v) => v.key);
-  const ctx: PassContext = { source, study, plan, globals, program, keys, chunkRows: options.chunkRows ?? STREAM_CHUNK_ROWS, signal: options.signal, onProgress: options.onProgress };
-  const settings = { deltas: study.settings.deltas, draws: study.settings.draws, seed: study.settings.seed };
-  const checkedSettings = validateSettings(settings);
-  if (!checkedSettings.ok) return checkedSettings;
-  lap('open');
+  return { ok: true, value: { source, study, plan, globals, program, keys, chunkRows: options.chunkRows ?? STREAM_CHUNK_ROWS, signal: options.signal, onProgress: options.onProgress } };
+}
 
-  // ---- pass 0: exclusions, the rule's verdicts, the scales ---------------------------------
+interface FirstPass {
+  mapper: StreamMapper;
+  byRule: Map<string, ExclusionReason>;
+  fidelity: Fidelity | null;
+  instrument: PreparedUnits['instrument'];
+  /** Units used (after the rule's exclusions), those the rule makes eligible, missing outcomes among them. */
+  n: number;
+  eligible: number;
+  missing: number[];
+  sd: ReturnType<typeof createWelford>[];
+  notes: Array<{ code: string; message: string }>;
+}
+
+/** Pass 0: every chunk mapped and prepared; exclusions, the rule's verdicts, the inputs' spread. Refuses as prepareStudy does. */
+async function firstPass(ctx: PassContext): Promise<Checked<FirstPass>> {
+  const { program, study } = ctx;
   const sd = program.continuous.map(() => createWelford());
   const byRule = new Map<string, ExclusionReason>();
-  let fidelity: Fidelity | null = null;
-  let instrument: PreparedUnits['instrument'] | null = null;
-  let n = 0;
-  let allCertain = true;
-  const pass0 = await pass(ctx, 'import', (prepared) => {
+  const state = { fidelity: null as Fidelity | null, instrument: null as PreparedUnits['instrument'] | null, n: 0, eligible: 0, allCertain: true };
+  const missing = study.columns.outcomes.map(() => 0);
+  const mapper = await pass(ctx, 'import', (prepared) => {
     mergeExclusions(byRule, prepared.excludedByRule);
-    fidelity = mergeFidelity(fidelity, prepared.fidelity);
-    instrument ??= prepared.instrument;
-    n += prepared.data.n;
-    for (let i = 0; i < prepared.offerProbability.length && allCertain; i++) {
+    state.fidelity = mergeFidelity(state.fidelity, prepared.fidelity);
+    state.instrument ??= prepared.instrument;
+    state.n += prepared.data.n;
+    for (let i = 0; i < prepared.eligible.length; i++) state.eligible += prepared.eligible[i]!;
+    prepared.data.outcomes.forEach((y, o) => { for (let i = 0; i < y.length; i++) if (!Number.isFinite(y[i]!)) missing[o]!++; });
+    for (let i = 0; i < prepared.offerProbability.length && state.allCertain; i++) {
       const p = prepared.offerProbability[i]!;
-      if (p !== 0 && p !== 1) allCertain = false;
+      if (p !== 0 && p !== 1) state.allCertain = false;
     }
     program.continuous.forEach((cv, j) => welfordAdd(sd[j]!, prepared.cols.continuous[cv.index]!, prepared.cols.n));
   });
-  const mappingExcluded = pass0.excluded();
-  if (pass0.used === 0) {
-    return refuse(study.data.path, `0 usable rows: no row of ${info.fileName} could be used (${pass0.rowsRead.toLocaleString('en-US')} read): ${topReasons(mappingExcluded)}. Fix the data or the column names in the study.`);
+  const mappingExcluded = mapper.excluded();
+  if (mapper.used === 0) {
+    return refuse(study.data.path, `0 usable rows: no row of ${ctx.source.info.fileName} could be used (${mapper.rowsRead.toLocaleString('en-US')} read): ${topReasons(mappingExcluded)}. Fix the data or the column names in the study.`);
   }
-  if (n === 0) {
+  if (state.n === 0) {
     return refuse('program.rule', `0 usable rows: the rule cannot be evaluated for any unit (${topReasons([...mappingExcluded, ...byRule.values()])}). Check the lookup tables (a limit for every value) and divisions.`);
   }
-  if (program.continuous.length === 0 && allCertain) {
+  if (program.continuous.length === 0 && state.allCertain) {
     return refuse('program.variables', 'This rule has no continuous input (every input is a category or a count held fixed), and it offers the benefit with certainty or not at all, so no unit can sit near its edge at any delta and the design cannot estimate an effect. What would: a criterion on a continuous input (an income, a score, an age in days), or a lottery among the eligible.');
   }
+  const notes: Array<{ code: string; message: string }> = [];
+  mapper.outcomeMissing.forEach((m, o) => {
+    const label = study.columns.outcomes[o]!.label ?? study.columns.outcomes[o]!.column;
+    if (m.count > 0) notes.push(outcomeMissingNote(label, m, mapper.used, m.causes));
+  });
+  for (const g of byRule.values()) if (g.reason.startsWith('the limit of ')) notes.push(limitGapWarning(g.reason, g.count));
+  return { ok: true, value: { mapper, byRule, fidelity: state.fidelity, instrument: state.instrument!, n: state.n, eligible: state.eligible, missing, sd, notes } };
+}
+
+async function streamOpened(study: Study, source: ColumnarSource, options: StreamOptions, timings: Record<string, number>, lap: (name: string) => void): Promise<Checked<StreamedRun>> {
+  const info = source.info;
+  const settings = { deltas: study.settings.deltas, draws: study.settings.draws, seed: study.settings.seed };
+  const checkedSettings = validateSettings(settings);
+  if (!checkedSettings.ok) return checkedSettings;
+  const context = await passContext(study, source, options);
+  if (!context.ok) return context;
+  const ctx = context.value;
+  const { plan, program } = ctx;
+  lap('open');
+
+  // ---- pass 0: exclusions, the rule's verdicts, the scales ---------------------------------
+  const first = await firstPass(ctx);
+  if (!first.ok) return first;
+  const { mapper: pass0, byRule, fidelity, instrument, n, sd } = first.value;
+  const mappingExcluded = pass0.excluded();
   const scales = scalesFromSd(program, n, (index) => welfordSd(sd[program.continuous.findIndex((c) => c.index === index)]!));
   if (!scales.ok) return scales;
   const scaleValues = scales.value.map((s) => s.scale);
@@ -262,7 +339,7 @@ async function streamOpened(study: Study, source: ColumnarSource, options: Strea
   const per = c.treatmentPer ?? 1;
   const hasTreatment = plan.treatment !== null;
   const estimand: 'treatment' | 'offer' = hasTreatment ? 'treatment' : 'offer';
-  const offerName = c.decision && instrument!.source === 'recorded-decision' ? c.decision : 'offer (formula)';
+  const offerName = c.decision && instrument.source === 'recorded-decision' ? c.decision : 'offer (formula)';
   const dName = hasTreatment ? (c.treatment as string) : offerName;
   const controlNames = c.controls ?? [];
   const outcomes = c.outcomes.map((o) => ({ column: o.column, label: o.label ?? o.column }));
@@ -406,10 +483,7 @@ async function streamOpened(study: Study, source: ColumnarSource, options: Strea
   });
   outcomeResults.forEach((o, i) => { o.localLinear = localLinear[i]!; });
   warnings.push(...balanceWarnings, ...merged.compositionWarnings, ...checkWarnings);
-  const notes = [...plan.notes];
-  pass0.outcomeMissing.forEach((m, o) => {
-    if (m.count > 0) notes.push(outcomeMissingNote(outcomes[o]!.label, m, pass0.used, m.causes));
-  });
+  const notes = [...plan.notes, ...first.value.notes.filter((x) => x.code === 'outcome-missing')];
   const sums: DeltaSummary[] = merged.summary ?? [];
   const composed: DeltaComposition[] = (merged.composition ?? []).map((d) => ({ ...d, atoms: d.atoms.map((a) => ({ ...a, share: d.boundary > 0 ? a.straddling / d.boundary : 0 })) }));
   const drawsUsed = points.replicates * points.perReplicate;
@@ -433,14 +507,14 @@ async function streamOpened(study: Study, source: ColumnarSource, options: Strea
       joins: [],
       notes,
     },
-    program: programBlock(study, program, instrument!.source),
+    program: programBlock(study, program, instrument.source),
     settings: {
       deltas: deltas.slice(), draws: settings.draws, seed: settings.seed, smallCellMax: study.settings.smallCellMax,
       drawsUsed, replicates: points.replicates, workers: null,
       variance: clusterCount !== null ? 'CR1' : 'HC1', clusterColumn: c.cluster ?? null,
     },
     scales: scales.value,
-    instrument: instrument!,
+    instrument,
     estimand: { kind: estimand, note: estimandNoteFor(estimand, dName, per), treatmentPer: per },
     fidelity,
     design: {

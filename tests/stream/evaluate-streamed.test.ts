@@ -7,7 +7,7 @@ import { existsSync, mkdtempSync, readFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { evaluateStudy } from '../../main/api/evaluate.ts';
+import { checkStudy, evaluateStudy } from '../../main/api/evaluate.ts';
 import { openWorkspace } from '../../main/store/workspace.ts';
 import { duckdb, inventedRowsSql, inventedStudy, writeStudy } from './helpers.ts';
 
@@ -44,5 +44,22 @@ describe('evaluate with a streamed data file', () => {
     if (!r.ok) throw new Error(JSON.stringify(r.error));
     expect(r.value.results.streamed?.format).toBe('csv');
     expect(r.value.results.study.rowsExcluded.find((e) => e.reason === 'INCOME is blank')?.rows[0]).toBe(2);
+  }, 120_000);
+
+  it('check reads a Parquet file in one pass and reports what the in-memory check reports for the same rows', async () => {
+    const dir = mkdtempSync(join(tmpdir(), 'fenceline-stream-api-'));
+    await duckdb(
+      `CREATE TABLE rebate AS ${inventedRowsSql(4_000, 6)}`,
+      `COPY rebate TO '${join(dir, 'rebate.parquet')}' (FORMAT parquet)`,
+      `COPY rebate TO '${join(dir, 'rebate.csv')}' (FORMAT csv, HEADER)`,
+    );
+    const streamedCheck = await checkStudy({ studyPath: writeStudy(dir, 'p.json', inventedStudy('rebate.parquet')) });
+    const memoryCheck = await checkStudy({ studyPath: writeStudy(dir, 'c.json', inventedStudy('rebate.csv')) });
+    if (!streamedCheck.ok || !memoryCheck.ok) throw new Error('check refused');
+    const a = memoryCheck.value;
+    const b = streamedCheck.value;
+    expect([b.rowsRead, b.rowsUsed, b.eligible, b.outcomesMissing]).toEqual([a.rowsRead, a.rowsUsed, a.eligible, a.outcomesMissing]);
+    expect(b.rowsExcluded.map((e) => [e.reason, e.count])).toEqual(a.rowsExcluded.map((e) => [e.reason, e.count]));
+    expect(b.dataFile).toBe('rebate.parquet');
   }, 120_000);
 });
