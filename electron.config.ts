@@ -43,7 +43,7 @@ const config: ElectronBuildConfig = {
   ],
   nativeModules: ['better-sqlite3'],
   // pdfkit loads its standard fonts through its own package.json "imports" map, which only works from its own folder.
-  external: ['electron', 'better-sqlite3', '@napi-rs/canvas', 'pdfkit'],
+  external: ['electron', 'better-sqlite3', '@napi-rs/canvas', 'pdfkit', '@duckdb/node-api', '@duckdb/node-bindings'],
   contentSecurityPolicy: "default-src 'none'; script-src 'self'; style-src 'self'; img-src 'self' data:; font-src 'self'; connect-src 'self'; base-uri 'none'; form-action 'none'; frame-ancestors 'none'",
 };
 

@@ -8,8 +8,11 @@ import type {
 import type { Study } from '../contract/study.ts';
 import { Cancelled, validateSettings } from '../design/propensity.ts';
 import { inputClashes } from '../output/input-clash.ts';
-import { writeRun } from '../pipeline/record.ts';
+import { writeOutputFiles } from '../output/write-files.ts';
+import { referenceStreamedFile, writeRun } from '../pipeline/record.ts';
 import { runStudy } from '../pipeline/run-study.ts';
+import { dataFileBytes, isStreamedStudy } from '../pipeline/stream-route.ts';
+import { streamStudy } from '../pipeline/stream-study.ts';
 import { AVAILABLE_MEMO_FORMATS, MEMO_FILE_NAMES } from '../report/memo-names.ts';
 import { studyFingerprint, withAbsolutePaths } from '../studyfile/fingerprint.ts';
 import { SAMPLES_DIR } from '../resources.ts';
@@ -48,6 +51,9 @@ export async function evaluateStudy(args: EvaluateArgs, ctx: HostContext = {}): 
   ];
   const early = inputClashes(resolve(args.outDir), ['results.json', 'units.csv', ...formats.map((f) => MEMO_FILE_NAMES[f])], inputs);
   if (early.length) return refuse(early);
+  if (isStreamedStudy(study.value, dataFileBytes(resolve(loaded.value.baseDir, study.value.data.path)))) {
+    return evaluateStreamed(study.value, loaded.value.baseDir, args, ctx, inputs);
+  }
   let run;
   try {
     run = await runStudy(study.value, { baseDir: loaded.value.baseDir, ...ctx, ...(args.workers !== undefined ? { workers: args.workers } : {}) });
@@ -78,6 +84,33 @@ export async function evaluateStudy(args: EvaluateArgs, ctx: HostContext = {}): 
   }
   if (!written.ok) return refuse(written.problems);
   return { ok: true, value: { outDir: resolve(args.outDir), files: written.value.files, results: r.results, runId: written.value.runId, studySha256, timings: r.timings } };
+}
+
+/**
+ * A study whose data file is streamed (main/pipeline/stream-study.ts): results.json only, its
+ * `streamed` block saying what was not computed and why no memo was written.
+ */
+async function evaluateStreamed(study: Study, baseDir: string, args: EvaluateArgs, ctx: HostContext, inputs: Array<{ path: string; role: string }>): Promise<ApiResult<EvaluateReport>> {
+  let run;
+  try {
+    run = await streamStudy(study, { baseDir, ...(ctx.onProgress ? { onProgress: ctx.onProgress } : {}), ...(ctx.signal ? { signal: ctx.signal } : {}) });
+  } catch (e) {
+    if (e instanceof Cancelled) return cancelled(e);
+    throw e;
+  }
+  if (!run.ok) return refuse(run.problems);
+  const results = run.value.results;
+  if (args.workspacePath) {
+    const referenced = referenceStreamedFile(resolve(args.workspacePath), run.value.file, results.study.dataSha256);
+    if (!referenced.ok) return refuse(referenced.problems);
+    results.warnings.push({ code: 'streamed-run-not-stored', message: `The workspace records ${results.study.dataFile} by its path and SHA-256 (it is not copied in), but runs of streamed files are not stored as runs in this version: results.json is this run's record.` });
+  }
+  const outDir = resolve(args.outDir);
+  const clash = inputClashes(outDir, ['results.json'], inputs);
+  if (clash.length) return refuse(clash);
+  const written = writeOutputFiles(outDir, [{ name: 'results.json', content: JSON.stringify(results, null, 2) + '\n' }]);
+  if (!written.ok) return refuse(written.problems);
+  return { ok: true, value: { outDir, files: written.value, results, runId: null, studySha256: studyFingerprint(study, baseDir), timings: run.value.timings } };
 }
 
 /** The bundled sample study end to end. */

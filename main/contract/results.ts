@@ -247,6 +247,25 @@ export interface Results {
   warnings: Warning[];
   headline: Headline;
   findings: Findings;
+  /** Present only when the data file was streamed (a .parquet file, or a .csv read through DuckDB):
+   * how it was read and which parts of the usual results were not computed (docs/study-format.md). */
+  streamed?: StreamedBlock;
+}
+
+/** How a streamed run read its file (results.json `streamed`, an extension of format 1). */
+export interface StreamedBlock {
+  /** 'parquet' or 'csv' (read by DuckDB embedded). */
+  format: 'parquet' | 'csv';
+  /** Rows per chunk, and the passes over the file (0: scales and exclusions, 1: moments, 2: robust variances). */
+  chunkRows: number;
+  passes: number;
+  /** The parts of results.json that a streamed run leaves empty, each with why. */
+  notComputed: Array<{ key: string; why: string }>;
+  /** Checks computed on a seeded uniform subsample of the units used (reservoir sampling, Vitter 1985):
+   * its size, out of how many units, the seed, which results keys come from it, and whether it is every unit. */
+  subsample: { size: number; of: number; seed: number; figures: string[]; every: boolean } | null;
+  /** Which outputs were written (results.json only) and why the memo was not. */
+  note: string;
 }
 
 /** Results before the findings are written (main/report/findings states them from the rest). */

@@ -59,6 +59,8 @@ export interface StudyData {
   decimal?: ',' | '.';
   /** Columns that hold dates on purpose (a continuous rule input may hold dates only if listed). */
   dateColumns?: string[];
+  /** A .csv read chunk by chunk through DuckDB (true) or whole (false); default by size. Parquet files are always streamed. */
+  stream?: boolean;
 }
 
 /** A study after validation: the program resolved to an object, settings filled with defaults. */

@@ -71,7 +71,7 @@ export interface MappedData {
 }
 
 const MAX_ROWS_LISTED = 1000;
-const BOOLEAN_TEXT = /^(?:yes|no|y|n|true|false)$/i;
+export const BOOLEAN_TEXT = /^(?:yes|no|y|n|true|false)$/i;
 
 function booleanText(text: string): number {
   const t = text.trim().toLowerCase();
@@ -87,15 +87,15 @@ interface Resolved {
   path: string;
 }
 
-type Failure = 'blank' | 'error' | 'no-result' | 'text' | 'negative' | 'not01' | 'not-amount' | 'no-row' | 'duplicate-key';
+export type Failure = 'blank' | 'error' | 'no-result' | 'text' | 'negative' | 'not01' | 'not-amount' | 'no-row' | 'duplicate-key';
 
 /** A read value, or why there is none. */
-type Read = { ok: true; value: number } | { ok: false; why: Failure };
+export type Read = { ok: true; value: number } | { ok: false; why: Failure };
 
 const FAIL = (why: Failure): Read => ({ ok: false, why });
 
 /** Numeric reading of one cell; `booleans` lets yes/no/true/false text count as 1/0. */
-function readNumber(column: RawColumn, r: number, booleans: boolean): Read {
+export function readNumber(column: RawColumn, r: number, booleans: boolean): Read {
   switch (column.kinds[r]) {
     case CellKind.Number:
     case CellKind.TextNumber:
@@ -113,6 +113,30 @@ function readNumber(column: RawColumn, r: number, booleans: boolean): Read {
       if (booleans && BOOLEAN_TEXT.test(text.trim())) return { ok: true, value: booleanText(text) };
       return FAIL('text');
     }
+  }
+}
+
+/** The note on an outcome missing for some units used (rows listed, causes counted). */
+export function outcomeMissingNote(label: string, missing: { count: number; rows: number[] }, n: number, causes: ReadonlyMap<string, number>): TableNote {
+  const grouped = countText;
+  const why = causes.size === 1 ? [...causes.keys()][0]! : [...causes].map(([cause, count]) => `${grouped(count)}: ${cause}`).join('; ');
+  // One wording whatever the count: the memo shares this note with the counts taken out, and a
+  // singular verb would give a count of one away (docs/method.md, disclosure).
+  return { code: 'outcome-missing', message: `Outcome ${label} is missing for ${grouped(missing.count)} of the ${grouped(n)} units used (${why}); they are left out of that outcome only (rows ${listRows(missing.rows, missing.count)}).` };
+}
+
+/** Why a row is excluded, in the analyst's words (the column as the file names it). */
+export function failureText(why: Failure, header: string, idName: string, source = ''): string {
+  switch (why) {
+    case 'blank': return `${header} is blank`;
+    case 'error': return `${header} holds an Excel error value`;
+    case 'no-result': return `${header} is a formula with no saved result`;
+    case 'text': return `${header} is not a number`;
+    case 'negative': return `${header} is negative`;
+    case 'not01': return `${header} is not 0/1`;
+    case 'not-amount': return `${header} is not 0/1 or an amount`;
+    case 'no-row': return `no row in ${source} for this ${idName}`;
+    case 'duplicate-key': return `${idName} appears more than once in ${source}`;
   }
 }
 
@@ -243,20 +267,7 @@ export function mapStudyColumns(table: RawTable, spec: ColumnSpec, joins: readon
   }
 
   // ---- 3. how each column reads ------------------------------------------------------------
-  const reasonText = (res: Resolved | null, why: Failure, header: string): string => {
-    const source = res?.joined?.source ?? '';
-    switch (why) {
-      case 'blank': return `${header} is blank`;
-      case 'error': return `${header} holds an Excel error value`;
-      case 'no-result': return `${header} is a formula with no saved result`;
-      case 'text': return `${header} is not a number`;
-      case 'negative': return `${header} is negative`;
-      case 'not01': return `${header} is not 0/1`;
-      case 'not-amount': return `${header} is not 0/1 or an amount`;
-      case 'no-row': return `no row in ${source} for this ${idName}`;
-      case 'duplicate-key': return `${idName} appears more than once in ${source}`;
-    }
-  };
+  const reasonText = (res: Resolved | null, why: Failure, header: string): string => failureText(why, header, idName, res?.joined?.source ?? '');
 
   const linked = (res: Resolved, unit: number): number | Failure => {
     const r = rowIn(res, unit);
@@ -464,14 +475,7 @@ export function mapStudyColumns(table: RawTable, spec: ColumnSpec, joins: readon
       const cause = reasonText(res, got.why, res!.header);
       causes.set(cause, (causes.get(cause) ?? 0) + 1);
     }
-    if (missing.count > 0) {
-      const label = spec.outcomes[o]!.label ?? res!.header;
-      const grouped = countText;
-      const why = causes.size === 1 ? [...causes.keys()][0]! : [...causes].map(([cause, count]) => `${grouped(count)}: ${cause}`).join('; ');
-      // One wording whatever the count: the memo shares this note with the counts taken out, and a
-      // singular verb would give a count of one away (docs/method.md, disclosure).
-      notes.push({ code: 'outcome-missing', message: `Outcome ${label} is missing for ${grouped(missing.count)} of the ${grouped(n)} units used (${why}); they are left out of that outcome only (rows ${listRows(missing.rows, missing.count)}).` });
-    }
+    if (missing.count > 0) notes.push(outcomeMissingNote(spec.outcomes[o]!.label ?? res!.header, missing, n, causes));
     outcomeArrays.push(out);
     outcomeMissing.push(missing);
   });

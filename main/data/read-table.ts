@@ -72,7 +72,7 @@ async function readHead(path: string, length: number): Promise<Buffer> {
   }
 }
 
-function fileProblem(err: unknown, path: string, fileName: string): Problem {
+export function fileProblem(err: unknown, path: string, fileName: string): Problem {
   const code = (err as { code?: unknown }).code;
   if (code === 'ENOENT' || code === 'ENOTDIR') return { path: fileName, message: `There is no file ${fileName} at ${path}. Check the file name and the folder (a path in a study file is relative to the study file).` };
   if (code === 'EACCES' || code === 'EPERM') return { path: fileName, message: `The file ${fileName} cannot be opened: this account is not allowed to read it. Copy it to a folder you own, or ask for read permission.` };
@@ -126,6 +126,9 @@ async function readTableUnguarded(path: string, fileName: string, opts: ReadTabl
   const ext = extname(fileName).toLowerCase();
   const isWorkbookName = ext === '.xlsx' || ext === '.xlsm';
   const isTextName = ext === '.csv' || ext === '.txt';
+  if (ext === '.parquet') {
+    return refuse(fileName, `${fileName} is a Parquet file: evaluate and check read it in chunks (a file beyond one sheet, docs/study-format.md), but this view shows .xlsx and .csv files only. Name it as data.path in the study and run check or evaluate.`);
+  }
   if (!isWorkbookName && !isTextName && ext !== '.xls') {
     return refuse(fileName, `Fenceline reads Excel workbooks (.xlsx) and comma-separated text (.csv); ${fileName} is neither. Save the data from its program as .xlsx or .csv.`);
   }

@@ -154,6 +154,24 @@ export interface ApsIvResult {
 
 export const APS_NAME = 'APS';
 
+export function apsUndefinedWarning(delta: number, count: number): EstimateWarning {
+  return {
+    code: 'aps-undefined',
+    message: `At delta ${delta}, ${count} unit(s) have no propensity score (the formula could not be evaluated around them); they are left out at that delta.`,
+  };
+}
+
+export function missingOutcomeWarning(label: string, missing: number): EstimateWarning {
+  return { code: 'missing-outcome', message: `Outcome "${label}": ${missing} unit(s) have no value; they are left out of its estimates.` };
+}
+
+/** The sentence on what the estimate is (results.json estimand.note). */
+export function estimandNoteFor(estimand: 'treatment' | 'offer', dName: string, per: number): string {
+  return estimand === 'treatment'
+    ? `The estimate is the effect of receiving ${dName}${per === 1 ? '' : ` per ${formatNumber(per)} of it`} for units near the formula's edge whose receipt follows the offer (compliers).`
+    : `No treatment column was given, so the estimate is the effect of the offer itself on units near the formula's edge (the reduced form); there is no first stage.`;
+}
+
 export function estimateApsIv(input: ApsIvInput): ApsIvResult {
   const n = input.offer.values.length;
   const level = input.level ?? 0.95;
@@ -187,22 +205,14 @@ export function estimateApsIv(input: ApsIvInput): ApsIvResult {
   const estimand = input.treatment ? 'treatment' : 'offer';
   const d = input.treatment ? scaled(input.treatment.values, per) : input.offer.values;
   const dName = input.treatment?.name ?? input.offer.name;
-  const estimandNote =
-    estimand === 'treatment'
-      ? `The estimate is the effect of receiving ${dName}${per === 1 ? '' : ` per ${formatNumber(per)} of it`} for units near the formula's edge whose receipt follows the offer (compliers).`
-      : `No treatment column was given, so the estimate is the effect of the offer itself on units near the formula's edge (the reduced form); there is no first stage.`;
+  const estimandNote = estimandNoteFor(estimand, dName, per);
 
   // APS per delta: NaN (undefined for the unit) is counted and never in the boundary sample.
   input.propensity.deltas.forEach((delta, k) => {
     const aps = input.propensity.aps[k]!;
     let undefinedCount = 0;
     for (let i = 0; i < n; i++) if (Number.isNaN(aps[i]!) && usable[i]) undefinedCount++;
-    if (undefinedCount > 0) {
-      warnings.push({
-        code: 'aps-undefined',
-        message: `At delta ${delta}, ${undefinedCount} unit(s) have no propensity score (the formula could not be evaluated around them); they are left out at that delta.`,
-      });
-    }
+    if (undefinedCount > 0) warnings.push(apsUndefinedWarning(delta, undefinedCount));
   });
 
   const outcomes = input.outcomes.map((outcome): OutcomeEstimates => {
@@ -214,12 +224,7 @@ export function estimateApsIv(input: ApsIvInput): ApsIvResult {
         if (observed[i]) missing++;
         observed[i] = 0;
       }
-    if (missing > 0) {
-      warnings.push({
-        code: 'missing-outcome',
-        message: `Outcome "${label}": ${missing} unit(s) have no value; they are left out of its estimates.`,
-      });
-    }
+    if (missing > 0) warnings.push(missingOutcomeWarning(label, missing));
     return {
       column: outcome.column,
       label,
@@ -289,11 +294,16 @@ interface DeltaJob {
 }
 
 function emptyEstimate(job: DeltaJob, offered: number, warnings: EstimateWarning[], variance: OfferVariance): DeltaEstimate {
+  return blankEstimate(job.delta, job.idx.length, offered, warnings, variance, baselineOf(job));
+}
+
+/** An estimate with its counts and no numbers (not estimable, or before the regressions). */
+export function blankEstimate(delta: number, n: number, offered: number, warnings: EstimateWarning[], variance: OfferVariance, baseline: { mean: number; n: number } | null): DeltaEstimate {
   return {
-    delta: job.delta,
-    n: job.idx.length,
+    delta,
+    n,
     offered,
-    notOffered: job.idx.length - offered,
+    notOffered: n - offered,
     estimable: false,
     estimate: null,
     se: null,
@@ -309,7 +319,7 @@ function emptyEstimate(job: DeltaJob, offered: number, warnings: EstimateWarning
     clusters: null,
     referenceDf: null,
     wildBootstrap: null,
-    baseline: baselineOf(job),
+    baseline,
     controls: [],
     dropped: [],
     warnings,
@@ -327,36 +337,53 @@ function baselineOf(job: DeltaJob): { mean: number; n: number } | null {
   return n > 0 ? { mean: sum / n, n } : null;
 }
 
-function estimateAtDelta(job: DeltaJob): DeltaEstimate {
-  const { delta, label, idx } = job;
+/** What the sample checks of one outcome at one delta need: counts only (shared with the streamed path). */
+export interface SampleCounts {
+  delta: number;
+  label: string;
+  /** Units with 0 < APS < 1 (usable), whatever the outcome. */
+  boundaryCount: number;
+  /** Of those, units with the outcome observed (the estimation sample), and how many were offered. */
+  n: number;
+  offered: number;
+  /** Clusters in the estimation sample when clustering was asked for, else null. */
+  clusters: number | null;
+  /** Coefficients of the largest model: 1, APS, controls, Z. */
+  kMax: number;
+}
+
+/**
+ * The checks made on an estimation sample before any regression, with their warnings: whether
+ * the effect can be estimated at all, whether the clusters allow CR1 (else HC1), and the
+ * warnings for small samples. `stop` means no regression is run.
+ */
+export function sampleChecks(s: SampleCounts): { warnings: EstimateWarning[]; stop: boolean; variance: OfferVariance; clustered: boolean } {
+  const { delta, label, n: nb, offered } = s;
   const at = `At delta ${delta}`;
   const warnings: EstimateWarning[] = [];
-  const nb = idx.length;
-  let offered = 0;
-  for (let j = 0; j < nb; j++) offered += job.offer.values[idx[j]!]! === 1 ? 1 : 0;
   const notOffered = nb - offered;
-  let variance: OfferVariance = job.globalClusters ? 'CR1' : 'HC1';
-
-  if (job.boundaryCount === 0) {
+  let variance: OfferVariance = s.clusters !== null ? 'CR1' : 'HC1';
+  const stop = (): { warnings: EstimateWarning[]; stop: boolean; variance: OfferVariance; clustered: boolean } => ({ warnings, stop: true, variance, clustered: false });
+  if (s.boundaryCount === 0) {
     warnings.push({
       code: 'no-boundary-units',
       message: `No units sit near the formula's edge at delta ${delta}: try a larger delta or check the scales.`,
     });
-    return emptyEstimate(job, offered, warnings, variance);
+    return stop();
   }
   if (nb === 0) {
     warnings.push({
       code: 'no-outcome-near-edge',
-      message: `${at}, none of the ${job.boundaryCount} units near the formula's edge has a value for outcome "${label}", so its effect cannot be estimated there.`,
+      message: `${at}, none of the ${s.boundaryCount} units near the formula's edge has a value for outcome "${label}", so its effect cannot be estimated there.`,
     });
-    return emptyEstimate(job, offered, warnings, variance);
+    return stop();
   }
   if (offered === 0 || notOffered === 0) {
     warnings.push({
       code: 'no-offer-variation',
       message: `${at}, all ${nb} units near the formula's edge with outcome "${label}" were ${offered === 0 ? 'not offered' : 'offered'} the benefit, so the offer's effect cannot be estimated there. Try a larger delta.`,
     });
-    return emptyEstimate(job, offered, warnings, variance);
+    return stop();
   }
   if (nb < FEW_BOUNDARY_UNITS) {
     warnings.push({
@@ -370,94 +397,85 @@ function estimateAtDelta(job: DeltaJob): DeltaEstimate {
       message: `${at}, outcome "${label}": only ${offered} offered and ${notOffered} not-offered units near the formula's edge (fewer than ${FEW_PER_SIDE} on a side): the estimate rests on very few units.`,
     });
   }
-
-  // Design [1, APS, controls, Z] on the sample (shared with the other outcomes of the same sample).
-  let clusters: ClusterCodes | undefined;
-  if (job.globalClusters) {
-    clusters = subsetClusters(job.globalClusters, idx);
-    if (clusters.count < 2) {
-      warnings.push({
-        code: 'few-clusters',
-        message: `${at}, the units near the formula's edge with outcome "${label}" all belong to one cluster, so cluster-robust standard errors are impossible; heteroskedasticity-robust (HC1) standard errors are used instead.`,
-      });
-      clusters = undefined;
-      variance = 'HC1';
-    }
+  let clustered = s.clusters !== null;
+  if (s.clusters !== null && s.clusters < 2) {
+    warnings.push({
+      code: 'few-clusters',
+      message: `${at}, the units near the formula's edge with outcome "${label}" all belong to one cluster, so cluster-robust standard errors are impossible; heteroskedasticity-robust (HC1) standard errors are used instead.`,
+    });
+    clustered = false;
+    variance = 'HC1';
   }
-  const kMax = job.controls.length + 3;
-  if (nb <= kMax) {
+  if (nb <= s.kMax) {
     warnings.push({
       code: 'too-few-units',
-      message: `${at}, ${nb} units near the formula's edge have outcome "${label}", too few for a model with ${kMax} coefficients. Try a larger delta or fewer controls.`,
+      message: `${at}, ${nb} units near the formula's edge have outcome "${label}", too few for a model with ${s.kMax} coefficients. Try a larger delta or fewer controls.`,
     });
-    return emptyEstimate(job, offered, warnings, variance);
+    return stop();
   }
-  const design = withVariance(
-    cachedFactor(job.cache, [job.offer.values, job.aps, ...job.controls.map((c) => c.values)], idx, () =>
-      factorOfferDesign({ name: job.offer.name, values: gather(job.offer.values, idx) }, [
-        { name: APS_NAME, values: gather(job.aps, idx) },
-        ...job.controls.map((c) => ({ name: c.name, values: gather(c.values, idx) })),
-      ]),
-    ),
-    clusters,
-  );
-  for (const w of design.warnings) warnings.push({ code: w.code, message: `${at}, outcome "${label}": ${w.message}` });
+  return { warnings, stop: false, variance, clustered };
+}
+
+/** The offer's coefficients and their robust (co)variances, from one design (offer-design.ts, or accumulated cross-products). */
+export interface OfferMoments {
+  /** Reduced form: coefficient of Z for the outcome, and its robust variance. */
+  piY: number;
+  vYY: number;
+  /** Take-up: whether it is the same for every unit of the sample (and that value). */
+  dConstant: boolean;
+  dFirst: number;
+  /** First stage (when take-up varies): coefficient of Z for D, covariances with the outcome's. */
+  piD: number;
+  vYD: number;
+  vDD: number;
+}
+
+/**
+ * The estimate of one outcome at one delta from the offer's coefficients and robust covariances:
+ * the reduced form, the first stage, 2SLS as ρ/γ with its delta-method variance (exact for the
+ * just-identified model, offer-design.ts), the Wald interval, the Anderson–Rubin set and the tF
+ * interval. `base` holds the counts and model description; `moments` is read lazily so a caller
+ * computes D's fit only when take-up varies.
+ */
+export function estimateFromMoments(
+  base: DeltaEstimate,
+  ctx: { delta: number; label: string; estimand: 'treatment' | 'offer'; level: number; clusters: number | null },
+  moments: () => OfferMoments,
+  bootstrap: (stage: 'offer' | 'treatment') => WildBootstrapResult | null = () => null,
+): DeltaEstimate {
+  const { delta, label } = ctx;
+  const at = `At delta ${delta}`;
+  const warnings = base.warnings;
   // Reference distribution of every Wald statistic below: t(G − 1) with CR1, else the normal.
-  const ref = referenceFor(job.level, clusters?.count);
+  const ref = referenceFor(ctx.level, ctx.clusters ?? undefined);
   const critical = ref.critical;
-  const base = {
-    ...emptyEstimate(job, offered, warnings, variance),
-    clusters: clusters?.count ?? null,
-    referenceDf: Number.isFinite(ref.df) ? ref.df : null,
-    controls: design.keptControls,
-    dropped: design.dropped,
-  };
-  if (!design.identified) {
-    warnings.push({
-      code: 'not-identified',
-      message: `${at}, outcome "${label}": the offer "${job.offer.name}" is a linear combination of ${design.keptControls.map((c) => `"${c}"`).join(', ') || 'the intercept'} among the units near the formula's edge, so its effect cannot be separated from theirs.`,
-    });
-    return base;
-  }
-
-  const fitY = offerFit(design, gather(job.y, idx));
-  const vYY = offerCovarianceMatrix(design, [fitY.residuals])[0]!;
-  const reducedForm = { coef: fitY.coef, se: Math.sqrt(vYY) };
-
-  if (job.estimand === 'offer') {
+  const m = moments();
+  const reducedForm = { coef: m.piY, se: Math.sqrt(m.vYY) };
+  if (ctx.estimand === 'offer') {
     // D = Z: β = ρ1 and, with V_DD = 0, the Anderson–Rubin set {β : (ρ1 − β)² ≤ q·V_YY} is the
     // Wald interval itself.
-    const ci: [number, number] = [fitY.coef - critical * reducedForm.se, fitY.coef + critical * reducedForm.se];
+    const ci: [number, number] = [m.piY - critical * reducedForm.se, m.piY + critical * reducedForm.se];
     return {
       ...base,
-      wildBootstrap: bootstrapFor(job, design, gather(job.offer.values, idx)),
+      wildBootstrap: bootstrap('offer'),
       estimable: true,
-      estimate: fitY.coef,
+      estimate: m.piY,
       se: reducedForm.se,
       ci,
-      p: ref.p(fitY.coef / reducedForm.se),
+      p: ref.p(m.piY / reducedForm.se),
       reducedForm,
       arCi: [ci],
       arShape: 'interval',
     };
   }
-
-  const dSample = gather(job.d, idx);
-  let constant = true;
-  for (let j = 1; j < nb && constant; j++) if (dSample[j] !== dSample[0]) constant = false;
-  if (constant) {
+  if (m.dConstant) {
     warnings.push({
       code: 'no-takeup-variation',
-      message: `${at}, outcome "${label}": every unit near the formula's edge has the same take-up (${formatNumber(dSample[0]!)}), so the offer does not move take-up and the effect of receiving the benefit cannot be estimated; the effect of the offer (reduced form) is still reported.`,
+      message: `${at}, outcome "${label}": every unit near the formula's edge has the same take-up (${formatNumber(m.dFirst)}), so the offer does not move take-up and the effect of receiving the benefit cannot be estimated; the effect of the offer (reduced form) is still reported.`,
     });
     return { ...base, reducedForm };
   }
-  const fitD = offerFit(design, dSample);
-  const v = offerCovarianceMatrix(design, [fitY.residuals, fitD.residuals]);
-  const vYD = v[1]!;
-  const vDD = v[3]!;
-  const piD = fitD.coef;
-  const piY = fitY.coef;
+  const { piD, piY, vYD, vDD, vYY } = m;
   const F = (piD * piD) / vDD;
   const firstStage = { coef: piD, se: Math.sqrt(vDD), F };
   if (!(piD !== 0) || !(vDD > 0)) {
@@ -488,7 +506,7 @@ function estimateAtDelta(job: DeltaJob): DeltaEstimate {
   }
   return {
     ...base,
-    wildBootstrap: bootstrapFor(job, design, dSample),
+    wildBootstrap: bootstrap('treatment'),
     estimable: true,
     estimate: beta,
     se,
@@ -501,6 +519,65 @@ function estimateAtDelta(job: DeltaJob): DeltaEstimate {
     tfCi: tf.interval,
     weakInstrument: weak,
   };
+}
+
+/** The base of an estimate that could be run: counts, clusters and reference, the model's columns. */
+export function estimateBase(empty: DeltaEstimate, level: number, clusters: number | null, keptControls: string[], dropped: string[]): DeltaEstimate {
+  const ref = referenceFor(level, clusters ?? undefined);
+  return { ...empty, clusters, referenceDf: Number.isFinite(ref.df) ? ref.df : null, controls: keptControls, dropped };
+}
+
+/** The warning when the offer is a combination of the controls in the sample. */
+export function notIdentifiedWarning(delta: number, label: string, offerName: string, keptControls: readonly string[]): EstimateWarning {
+  return {
+    code: 'not-identified',
+    message: `At delta ${delta}, outcome "${label}": the offer "${offerName}" is a linear combination of ${keptControls.map((c) => `"${c}"`).join(', ') || 'the intercept'} among the units near the formula's edge, so its effect cannot be separated from theirs.`,
+  };
+}
+
+function estimateAtDelta(job: DeltaJob): DeltaEstimate {
+  const { delta, label, idx } = job;
+  const nb = idx.length;
+  let offered = 0;
+  for (let j = 0; j < nb; j++) offered += job.offer.values[idx[j]!]! === 1 ? 1 : 0;
+  let clusters: ClusterCodes | undefined = job.globalClusters ? subsetClusters(job.globalClusters, idx) : undefined;
+  const checks = sampleChecks({ delta, label, boundaryCount: job.boundaryCount, n: nb, offered, clusters: clusters ? clusters.count : null, kMax: job.controls.length + 3 });
+  const warnings = checks.warnings;
+  if (checks.stop) return emptyEstimate(job, offered, warnings, checks.variance);
+  if (!checks.clustered) clusters = undefined;
+
+  // Design [1, APS, controls, Z] on the sample (shared with the other outcomes of the same sample).
+  const design = withVariance(
+    cachedFactor(job.cache, [job.offer.values, job.aps, ...job.controls.map((c) => c.values)], idx, () =>
+      factorOfferDesign({ name: job.offer.name, values: gather(job.offer.values, idx) }, [
+        { name: APS_NAME, values: gather(job.aps, idx) },
+        ...job.controls.map((c) => ({ name: c.name, values: gather(c.values, idx) })),
+      ]),
+    ),
+    clusters,
+  );
+  for (const w of design.warnings) warnings.push({ code: w.code, message: `At delta ${delta}, outcome "${label}": ${w.message}` });
+  const base = estimateBase(emptyEstimate(job, offered, warnings, checks.variance), job.level, clusters?.count ?? null, design.keptControls, design.dropped);
+  if (!design.identified) {
+    warnings.push(notIdentifiedWarning(delta, label, job.offer.name, design.keptControls));
+    return base;
+  }
+  const fitY = offerFit(design, gather(job.y, idx));
+  let dSample: Float64Array | null = null;
+  const moments = (): OfferMoments => {
+    const vYY = offerCovarianceMatrix(design, [fitY.residuals])[0]!;
+    const none = { piY: fitY.coef, vYY, dConstant: false, dFirst: NaN, piD: NaN, vYD: NaN, vDD: NaN };
+    if (job.estimand === 'offer') return none;
+    dSample = gather(job.d, idx);
+    let constant = true;
+    for (let j = 1; j < nb && constant; j++) if (dSample[j] !== dSample[0]) constant = false;
+    if (constant) return { ...none, dConstant: true, dFirst: dSample[0]! };
+    const fitD = offerFit(design, dSample);
+    const v = offerCovarianceMatrix(design, [fitY.residuals, fitD.residuals]);
+    return { ...none, piD: fitD.coef, vYD: v[1]!, vDD: v[3]! };
+  };
+  return estimateFromMoments(base, { delta, label, estimand: job.estimand, level: job.level, clusters: clusters?.count ?? null }, moments,
+    (stage) => bootstrapFor(job, design, stage === 'offer' ? gather(job.offer.values, idx) : dSample!));
 }
 
 /** The wild cluster bootstrap when asked for at this delta and the clusters are fewer than 50. */

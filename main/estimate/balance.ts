@@ -163,17 +163,7 @@ export function balanceChecks(input: BalanceInput): BalanceResult {
       const fit = offerFit(design, x);
       rowFits[j] = fit;
       const se = Math.sqrt(offerCovarianceMatrix(design, [fit.residuals])[0]!);
-      const ref = referenceFor(level, design.clusters?.count);
-      row.diff = fit.coef;
-      row.se = se;
-      row.p = ref.p(fit.coef / se);
-      row.ci = [fit.coef - ref.critical * se, fit.coef + ref.critical * se];
-      row.clusters = design.clusters?.count ?? null;
-      const g = groupMoments(x, z);
-      row.meanOffered = g.mean1;
-      row.meanNotOffered = g.mean0;
-      const pooled = Math.sqrt((g.var1 + g.var0) / 2);
-      row.standardizedDiff = pooled > 0 ? fit.coef / pooled : null;
+      fillBalanceRow(row, fit.coef, se, level, design.clusters?.count ?? null, groupMoments(x, z));
     });
 
     // Joint test on the units with every covariate observed.
@@ -199,25 +189,66 @@ export function balanceChecks(input: BalanceInput): BalanceResult {
       design,
       fits.map((f) => f.residuals),
     );
-    const wald = jointWald(
-      fits.map((f) => f.coef),
-      cov,
-    );
-    entry.tested = wald.kept.map((j) => input.covariates[j]!.name);
-    entry.leftOut = input.covariates.map((c) => c.name).filter((name) => !entry.tested.includes(name));
-    entry.df = wald.kept.length;
-    if (wald.kept.length > 0) {
-      entry.statistic = wald.statistic;
-      entry.p = chiSquareSurvival(wald.statistic, wald.kept.length);
-    }
-    if (entry.leftOut.length > 0) {
-      warnings.push({
-        code: 'balance-collinear',
-        message: `${at}, the joint balance test leaves out ${entry.leftOut.map((s) => `"${s}"`).join(', ')}: near the formula's edge ${entry.leftOut.length === 1 ? 'its difference is' : 'their differences are'} a combination of the other covariates' (or has no variation), so ${entry.leftOut.length === 1 ? 'it adds' : 'they add'} nothing to the test.`,
-      });
-    }
+    fillJointEntry(entry, fits.map((f) => f.coef), cov, input.covariates.map((c) => c.name), at, warnings);
   });
   return { rows, joint, warnings };
+}
+
+/** Group means and sample variances of a covariate among offered and not-offered units. */
+export interface GroupMoments { mean1: number | null; mean0: number | null; var1: number; var0: number }
+
+/** A balance row's numbers from the offer's coefficient, its robust SE and the group moments. */
+export function fillBalanceRow(row: BalanceRow, coef: number, se: number, level: number, clusters: number | null, g: GroupMoments): void {
+  const ref = referenceFor(level, clusters ?? undefined);
+  row.diff = coef;
+  row.se = se;
+  row.p = ref.p(coef / se);
+  row.ci = [coef - ref.critical * se, coef + ref.critical * se];
+  row.clusters = clusters;
+  row.meanOffered = g.mean1;
+  row.meanNotOffered = g.mean0;
+  const pooled = Math.sqrt((g.var1 + g.var0) / 2);
+  row.standardizedDiff = pooled > 0 ? coef / pooled : null;
+}
+
+/** The joint test's numbers from the offer's coefficients and their robust covariance (m×m). */
+export function fillJointEntry(entry: BalanceJoint, coefs: readonly number[], cov: Float64Array, names: readonly string[], at: string, warnings: EstimateWarning[]): void {
+  const wald = jointWald(coefs, cov);
+  entry.tested = wald.kept.map((j) => names[j]!);
+  entry.leftOut = names.filter((name) => !entry.tested.includes(name));
+  entry.df = wald.kept.length;
+  if (wald.kept.length > 0) {
+    entry.statistic = wald.statistic;
+    entry.p = chiSquareSurvival(wald.statistic, wald.kept.length);
+  }
+  if (entry.leftOut.length > 0) {
+    warnings.push({
+      code: 'balance-collinear',
+      message: `${at}, the joint balance test leaves out ${entry.leftOut.map((s) => `"${s}"`).join(', ')}: near the formula's edge ${entry.leftOut.length === 1 ? 'its difference is' : 'their differences are'} a combination of the other covariates' (or has no variation), so ${entry.leftOut.length === 1 ? 'it adds' : 'they add'} nothing to the test.`,
+    });
+  }
+}
+
+/** The sample checks of a balance design (units, clusters), with their warnings; false when balance cannot be checked. */
+export function balanceSampleChecks(n: number, clusters: number | null, at: string, warnings: EstimateWarning[]): { ok: boolean; clustered: boolean } {
+  if (n === 0) {
+    warnings.push({ code: 'no-boundary-units', message: `No units sit near the formula's edge at ${at.replace('At ', '')}: try a larger delta or check the scales.` });
+    return { ok: false, clustered: false };
+  }
+  if (n <= 3) {
+    warnings.push({ code: 'too-few-units', message: `${at}, only ${n} units near the formula's edge: too few to check balance.` });
+    return { ok: false, clustered: false };
+  }
+  if (clusters !== null && clusters < 2) {
+    warnings.push({ code: 'few-clusters', message: `${at}, the units near the formula's edge all belong to one cluster; the balance checks use HC1 standard errors instead of CR1.` });
+    return { ok: true, clustered: false };
+  }
+  return { ok: true, clustered: clusters !== null };
+}
+
+/** The warning when the offer does not vary once the APS is held fixed. */
+export function balanceNotIdentifiedWarning(at: string): EstimateWarning {
+  return { code: 'no-offer-variation', message: `${at}, the offer does not vary among the units near the formula's edge once the APS is held fixed, so balance cannot be checked.` };
 }
 
 /** Design [1, APS, Z] for the rows idx, or null (with a warning) when the offer cannot be assessed. */
@@ -230,19 +261,10 @@ function offerDesignFor(
   warnings: EstimateWarning[],
   cache: DesignCache,
 ): OfferDesign | null {
-  if (idx.length === 0) {
-    warnings.push({ code: 'no-boundary-units', message: `No units sit near the formula's edge at ${at.replace('At ', '')}: try a larger delta or check the scales.` });
-    return null;
-  }
-  if (idx.length <= 3) {
-    warnings.push({ code: 'too-few-units', message: `${at}, only ${idx.length} units near the formula's edge: too few to check balance.` });
-    return null;
-  }
-  let clusters: ClusterCodes | undefined = global ? subsetClusters(global, idx) : undefined;
-  if (clusters && clusters.count < 2) {
-    warnings.push({ code: 'few-clusters', message: `${at}, the units near the formula's edge all belong to one cluster; the balance checks use HC1 standard errors instead of CR1.` });
-    clusters = undefined;
-  }
+  let clusters: ClusterCodes | undefined = global && idx.length > 0 ? subsetClusters(global, idx) : undefined;
+  const checks = balanceSampleChecks(idx.length, clusters ? clusters.count : null, at, warnings);
+  if (!checks.ok) return null;
+  if (!checks.clustered) clusters = undefined;
   const design = withVariance(
     cachedFactor(cache, [offer.values, aps], idx, () =>
       factorOfferDesign({ name: offer.name, values: gather(offer.values, idx) }, [{ name: APS_NAME, values: gather(aps, idx) }]),
@@ -250,7 +272,7 @@ function offerDesignFor(
     clusters,
   );
   if (!design.identified) {
-    warnings.push({ code: 'no-offer-variation', message: `${at}, the offer does not vary among the units near the formula's edge once the APS is held fixed, so balance cannot be checked.` });
+    warnings.push(balanceNotIdentifiedWarning(at));
     return null;
   }
   return design;

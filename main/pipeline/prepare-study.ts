@@ -80,7 +80,7 @@ export interface PreparedStudy {
 }
 
 /** The largest exclusion reasons, for a message ("1,204 HH_INCOME is not a number; 3 ..."). */
-function topReasons(excluded: ReadonlyArray<{ reason: string; count: number }>, max = 3): string {
+export function topReasons(excluded: ReadonlyArray<{ reason: string; count: number }>, max = 3): string {
   const sorted = [...excluded].sort((a, b) => b.count - a.count);
   const shown = sorted.slice(0, max).map((e) => `${countText(e.count)} ${e.reason}`);
   if (sorted.length > max) shown.push(`and ${sorted.length - max} other reason${sorted.length - max === 1 ? '' : 's'}`);

@@ -89,6 +89,11 @@ function discreteLabel(program: CompiledProgram, by: number): string {
   return (v.label || v.key).replace(/^./, (c) => c.toLowerCase());
 }
 
+/** The warning for a gap in a limit table: what has no entry, and how many rows it leaves out. */
+export function limitGapWarning(what: string, count: number): Warning {
+  return { code: 'limit-table-gap', message: `${what}: ${rowsWord(count)} are left out. Add an entry for it, or an 'any other value' limit.` };
+}
+
 const rowsWord = (n: number) => `${countText(n)} row${n === 1 ? '' : 's'}`;
 
 /**
@@ -116,7 +121,7 @@ function unevaluableGroups(program: CompiledProgram, margin: IrNode, data: Mappe
   for (const g of [...gaps.values()].sort((a, b) => a.by - b.by || a.code - b.code)) {
     const what = `the limit of "${criterion}" has no entry for ${discreteLabel(program, g.by)} ${discreteValueText(program, data, variableOrder, g.by, g.code)}`;
     excluded.push({ reason: what, count: g.count, rows: g.rows });
-    warnings.push({ code: 'limit-table-gap', message: `${what}: ${rowsWord(g.count)} are left out. Add an entry for it, or an 'any other value' limit.` });
+    warnings.push(limitGapWarning(what, g.count));
   }
   if (arithmetic.length) {
     excluded.push({

@@ -162,3 +162,17 @@ export async function exportStoredMemo(view: RunView, outDir: string, opts: Pick
   if (opts.signal?.aborted) throw new Cancelled();
   return writeOutputFiles(outDir, files);
 }
+
+/**
+ * Record the data file a streamed run read (its path and SHA-256, never its bytes) in the
+ * workspace; the run itself is not stored in this version (its results.json says so).
+ */
+export function referenceStreamedFile(workspacePath: string, file: { path: string; bytes: number; rows: number; format: 'parquet' | 'csv' }, sha256: string): Checked<number> {
+  const opened = openWorkspace(workspacePath);
+  if (!opened.ok) return opened;
+  try {
+    return opened.value.referenceFile({ path: file.path, sha256, bytes: file.bytes, rows: file.rows, format: file.format });
+  } finally {
+    opened.value.close();
+  }
+}

@@ -181,15 +181,7 @@ export async function runStudy(study: Study, options: RunOptions): Promise<Check
       notes: mapped.notes,
       columnLabels: columnLabels(study),
     },
-    program: {
-      name: study.program.name,
-      unit: study.program.unit ?? 'unit',
-      definition: study.program,
-      wording: describeProgram(study.program),
-      offerWording: describeOffer(study.program.offer, study.program.unit ?? 'unit'),
-      offerKind: prepared.instrument.source === 'formula' ? 'deterministic' : 'lottery',
-      criteria: criteriaBlock(program.atoms, study.program),
-    },
+    program: programBlock(study, program, prepared.instrument.source),
     settings: {
       deltas: ps.deltas.slice(), draws: settings.draws, seed: settings.seed, smallCellMax: study.settings.smallCellMax,
       drawsUsed: ps.drawsUsed, replicates: ps.replicates, workers: null,
@@ -233,13 +225,26 @@ export async function runStudy(study: Study, options: RunOptions): Promise<Check
   };
 }
 
-function dedupe(ws: Warning[]): Warning[] {
+/** results.json `program`: the rule as run, in words, with its criteria. */
+export function programBlock(study: Study, program: CompiledProgram, instrument: 'formula' | 'recorded-decision'): Results['program'] {
+  return {
+    name: study.program.name,
+    unit: study.program.unit ?? 'unit',
+    definition: study.program,
+    wording: describeProgram(study.program),
+    offerWording: describeOffer(study.program.offer, study.program.unit ?? 'unit'),
+    offerKind: instrument === 'formula' ? 'deterministic' : 'lottery',
+    criteria: criteriaBlock(program.atoms, study.program),
+  };
+}
+
+export function dedupe(ws: Warning[]): Warning[] {
   const seen = new Set<string>();
   return ws.filter((w) => { const k = `${w.code}\u0000${w.message}`; if (seen.has(k)) return false; seen.add(k); return true; });
 }
 
 /** The memo's name for every column it may mention (results.study.columnLabels). */
-function columnLabels(study: Study): Record<string, string> {
+export function columnLabels(study: Study): Record<string, string> {
   const c = study.columns;
   const out: Record<string, string> = { [c.id]: 'ID' };
   for (const j of study.data.join ?? []) out[j.key] = 'ID';

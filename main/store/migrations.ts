@@ -148,6 +148,22 @@ export const MIGRATIONS: readonly Migration[] = [
       BEGIN SELECT RAISE(ABORT, 'the per-unit columns of a run cannot be deleted'); END;
     `,
   },
+  {
+    version: 5,
+    description: 'referenced files: a data file beyond one sheet (Parquet, large CSV) known by its path and SHA-256, never copied in',
+    sql: `
+      CREATE TABLE referenced_files (
+        id          INTEGER PRIMARY KEY,
+        path        TEXT NOT NULL CHECK (path <> ''),
+        sha256      TEXT NOT NULL CHECK (length(sha256) = 64),
+        bytes       INTEGER NOT NULL CHECK (bytes >= 0),
+        rows        INTEGER NOT NULL CHECK (rows >= 0),
+        format      TEXT NOT NULL CHECK (format IN ('parquet', 'csv')),
+        recorded_at TEXT NOT NULL,
+        UNIQUE (path, sha256)
+      );
+    `,
+  },
 ];
 
 /** The newest schema this version of Fenceline reads and writes. */

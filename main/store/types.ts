@@ -181,6 +181,9 @@ export interface Workspace {
   studyHistory(studyId: number): Checked<VersionEntry[]>;
 
   importDataset(meta: DatasetInput, opts?: ImportOptions): Checked<number>;
+  /** Record a data file that stays where it is (a streamed file): its path and hash; the id of its record (the same for the same path and hash). */
+  referenceFile(input: ReferencedFileInput): Checked<number>;
+  listReferencedFiles(): Checked<ReferencedFile[]>;
   loadDataset(datasetId: number): Checked<StoredDataset>;
   listDatasets(): Checked<DatasetSummary[]>;
   deleteDataset(datasetId: number): Checked<void>;
@@ -200,4 +203,19 @@ export interface Workspace {
   /** SQLite's full integrity check; problems name what is damaged. Slow on big files. */
   checkIntegrity(): Checked<void>;
   close(): void;
+}
+
+/** A data file known by its path and SHA-256, never copied into the workspace (schema 5). */
+export interface ReferencedFileInput {
+  /** Absolute path of the file. */
+  path: string;
+  sha256: string;
+  bytes: number;
+  rows: number;
+  format: 'parquet' | 'csv';
+}
+
+export interface ReferencedFile extends ReferencedFileInput {
+  id: number;
+  recordedAt: string;
 }

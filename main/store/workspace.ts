@@ -10,6 +10,7 @@ import { dirname, resolve } from 'node:path';
 import type { StoreContext } from './context.ts';
 import { stampWriter } from './context.ts';
 import * as datasets from './datasets.ts';
+import * as referenced from './referenced-files.ts';
 import { documentHistory, getDocument, listDocuments, PROGRAMS, saveDocument, STUDIES } from './documents.ts';
 import { APPLICATION_ID, applyMigrations, readSchemaVersion, SCHEMA_VERSION } from './migrations.ts';
 import { fail, fileLabel, isSqliteError, ok, sqliteProblem } from './problems.ts';
@@ -191,6 +192,8 @@ export function openWorkspace(path: string, opts: OpenOptions = {}): Checked<Wor
     loadDataset: (datasetId) => datasets.loadDataset(ctx, datasetId),
     listDatasets: () => datasets.listDatasets(ctx),
     deleteDataset: (datasetId) => datasets.deleteDataset(ctx, datasetId),
+    referenceFile: (input) => referenced.referenceFile(ctx, input),
+    listReferencedFiles: () => referenced.listReferencedFiles(ctx),
 
     recordRun: (input) => runs.recordRun(ctx, input),
     beginRun: (input) => runs.beginRun(ctx, input),

@@ -11,7 +11,7 @@ import { validateProgram } from '../rules/validate.ts';
 export const STUDY_FORMAT_VERSION = 1;
 
 const STUDY_FIELDS = ['fenceline', 'title', 'description', 'program', 'data', 'columns', 'settings'];
-const DATA_FIELDS = ['path', 'fileName', 'sheet', 'headerRow', 'join', 'decimal', 'dateColumns'];
+const DATA_FIELDS = ['path', 'fileName', 'sheet', 'headerRow', 'join', 'decimal', 'dateColumns', 'stream'];
 const JOIN_FIELDS = ['path', 'fileName', 'sheet', 'key', 'headerRow'];
 const COLUMN_FIELDS = ['id', 'outcomes', 'treatment', 'treatmentPer', 'decision', 'cluster', 'covariates', 'controls', 'labels'];
 const OUTCOME_FIELDS = ['column', 'label'];
@@ -113,10 +113,17 @@ function validateData(ps: Problems, v: unknown): StudyData | undefined {
   }
   // Columns that hold dates on purpose: a continuous rule input may be a date only when its column is listed here.
   const dateColumns = textList(ps, o, 'dateColumns', 'data', 'data.dateColumns');
+  // Read a .csv chunk by chunk through DuckDB (true), or always in memory (false); default: by size (docs/study-format.md).
+  let stream: boolean | undefined;
+  if (hasOwn(o, 'stream') && getOwn(o, 'stream') !== undefined) {
+    const st = getOwn(o, 'stream');
+    if (typeof st === 'boolean') stream = st;
+    else ps.add('data.stream', `data.stream is true (read the .csv in chunks, for files beyond one sheet) or false (read it whole); found ${describeGiven(st)}.`);
+  }
   if (!path) return undefined;
   return {
     path, ...(fileName ? { fileName } : {}), ...(sheet ? { sheet } : {}), ...(headerRow ? { headerRow } : {}), ...(join ? { join } : {}),
-    ...(decimal ? { decimal } : {}), ...(dateColumns?.length ? { dateColumns } : {}),
+    ...(decimal ? { decimal } : {}), ...(dateColumns?.length ? { dateColumns } : {}), ...(stream !== undefined ? { stream } : {}),
   };
 }
 

@@ -32,6 +32,7 @@ import { createInflateRaw } from 'node:zlib';
 import ExcelJS from 'exceljs';
 import { createRng } from '../../main/design/random.ts';
 import { exceljsAlone } from './exceljs-reader.ts';
+import { peakResidentMB } from './peak-memory.ts';
 
 /** Data rows: with the header, 1,048,576 rows, the most an Excel sheet holds. */
 const ROWS = Number(process.env.BENCH_IMPORT_ROWS ?? (process.env.BENCH_QUICK === '1' ? 100_000 : 1_048_575));
@@ -165,18 +166,6 @@ async function saxWasmTokens(path: string): Promise<string> {
   return `${cells.toLocaleString('en-US')} cells, ${textBytes.toLocaleString('en-US')} characters of text`;
 }
 
-/**
- * Peak resident memory of this process. On Linux, VmHWM of /proc/self/status: getrusage's
- * maxRSS also counts the parent's resident memory at fork time (the bench's parent holds the
- * generated workbook), VmHWM starts afresh with the new program (proc(5)).
- */
-function peakResidentMB(): number {
-  try {
-    const m = /^VmHWM:\s+(\d+) kB/m.exec(readFileSync('/proc/self/status', 'utf8'));
-    if (m) return Number(m[1]) / 1024;
-  } catch { /* not Linux */ }
-  return process.resourceUsage().maxRSS / 1024;
-}
 
 interface Measured { seconds: number; cpuSeconds: number; peakMB: number; heapMB: number; detail: string }
 

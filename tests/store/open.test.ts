@@ -46,7 +46,7 @@ describe('migrations', () => {
     // Bytes 18 and 19 are the write and read format versions: 2 means WAL (file format §1.3.4).
     expect(h[18]).toBe(2);
     expect(h[19]).toBe(2);
-    expect(tables(file)).toEqual(['dataset_chunks', 'dataset_columns', 'datasets', 'meta', 'program_versions', 'programs', 'runs', 'studies', 'study_versions']);
+    expect(tables(file)).toEqual(['dataset_chunks', 'dataset_columns', 'datasets', 'meta', 'program_versions', 'programs', 'referenced_files', 'runs', 'studies', 'study_versions']);
   });
 
   it('treat a zero-byte file as a new workspace', () => {
@@ -148,14 +148,14 @@ describe('refusals (one message, no exception)', () => {
     const file = tempWorkspacePath();
     openFresh(file).close();
     const raw = new Database(file);
-    raw.pragma('user_version = 5');
+    raw.pragma(`user_version = ${SCHEMA_VERSION + 1}`);
     raw.close();
     const before = readFileSync(file);
 
     for (const readonly of [false, true]) {
       const problems = problemsOf(openWorkspace(file, { readonly }));
       expect(problems).toHaveLength(1);
-      expect(problems[0]!.message).toContain(`This workspace was written by a newer Fenceline (schema 5; this version reads up to ${SCHEMA_VERSION})`);
+      expect(problems[0]!.message).toContain(`This workspace was written by a newer Fenceline (schema ${SCHEMA_VERSION + 1}; this version reads up to ${SCHEMA_VERSION})`);
       expect(problems[0]!.message).toContain('Open it with the newer version, or choose another workspace file.');
       expect(problems[0]!.message).toContain('last by Fenceline 0.1.0-test');
       expect(problems[0]!.message).toContain(file);
