@@ -170,6 +170,13 @@ async function withStreamedFile<T>(study: Study, options: StreamOptions, work: (
   if ((study.data.join ?? []).length > 0) {
     return refuse('data.join', 'Joined files (data.join) cannot be read with a streamed data file in this version. Put the columns the study needs into one Parquet file (a database or DuckDB can join them), or use a sheet-sized .xlsx or .csv.');
   }
+  // Settings the in-memory reader honours but the streamed one does not read are refused, not ignored.
+  if (study.data.decimal !== undefined) {
+    return refuse('data.decimal', 'The decimal mark setting (data.decimal) is not read for a streamed data file in this version: numbers in a Parquet file carry their own type, and a streamed .csv reads "." as the decimal mark. Remove the setting (converting the column first if it uses commas), or use a sheet-sized .xlsx or .csv.');
+  }
+  if ((study.data.dateColumns ?? []).length > 0) {
+    return refuse('data.dateColumns', 'Date columns (data.dateColumns) are not read for a streamed data file in this version. Store those dates as numbers (days since 1970-01-01) in the file and remove the setting, or use a sheet-sized .xlsx or .csv.');
+  }
   const path = isAbsolute(study.data.path) ? study.data.path : resolve(options.baseDir, study.data.path);
   const format = extname(path).toLowerCase() === '.csv' ? 'csv' : 'parquet';
   // DuckDB (a native module) loads only when a streamed file is read: `check` and `--help` never load it.

@@ -153,7 +153,19 @@ describe('streamed Parquet = in-memory .csv, invented file with a known effect',
     expect(run.problems[0]!.message).toBe('No column OUTCOMES in rebate.parquet; did you mean OUTCOME?');
   });
 
-  it('refuses a file that is not Parquet in plain words', async () => {
+  it.each([
+    ['data.decimal', { decimal: ',' as const }, /decimal mark setting \(data\.decimal\) is not read for a streamed data file/],
+    ['data.dateColumns', { dateColumns: ['INCOME'] }, /Date columns \(data\.dateColumns\) are not read for a streamed data file/],
+  ])('refuses %s, which the streamed reader does not read, instead of ignoring it', async (path, extra, message) => {
+    const study = inventedStudy('rebate.parquet');
+    study.data = { ...study.data, ...extra };
+    const run = await streamed(writeStudy(dir, `setting-${path}.json`, study), 7_777);
+    expect(run.ok).toBe(false);
+    if (run.ok) return;
+    expect(run.problems).toEqual([{ path, message: expect.stringMatching(message) }]);
+  });
+
+    it('refuses a file that is not Parquet in plain words', async () => {
     writeFileSync(join(dir, 'fake.parquet'), 'ID,INCOME\n1,2\n');
     const run = await streamed(writeStudy(dir, 'fake.json', inventedStudy('fake.parquet')), 7_777);
     expect(run.ok).toBe(false);
