@@ -7,6 +7,7 @@
 import type { OutcomeResults, Results } from '../../main/contract/results.ts';
 import type { DeltaSensitivitySpec } from '../../main/report/charts/spec.ts';
 import { count, interval, num, percent, pValue } from './format.ts';
+import { columnName } from './names.ts';
 
 export type Tone = 'good' | 'caution' | 'neutral';
 export interface Verdict { tone: Tone; mark: '✓' | '!' | '·'; text: string; finding?: string }
@@ -65,7 +66,7 @@ export function balanceVerdict(r: Results): Verdict {
   const b = r.findings.balance;
   if (b.verdict === 'not checked') return neutral('No covariates were chosen, so balance was not checked. Add characteristics measured before the decision.', b.verdict);
   const tests = `${b.tests} single-characteristic test${b.tests === 1 ? '' : 's'} and ${b.jointTests} joint test${b.jointTests === 1 ? '' : 's'}, p-values adjusted for their number (Holm 1979)`;
-  const list = (why: string) => b.flagged.filter((f) => f.why.includes(why as never)).map((f) => `${f.covariate} at δ = ${f.delta}`).join('; ');
+  const list = (why: string) => b.flagged.filter((f) => f.why.includes(why as never)).map((f) => `${columnName(r, f.covariate)} at δ = ${f.delta}`).join('; ');
   const large = list('large difference');
   const largeText = large ? ` Standardized difference beyond 0.25 (Rubin 2001): ${large}.` : '';
   const advice = b.advice === 'read the smaller delta' ? ' The smallest delta is clean: give it the most weight.' : b.advice === 'check the inputs and characteristics' ? ' The smallest delta is flagged too: check how the inputs and characteristics were recorded.' : '';

@@ -45,6 +45,12 @@ describe('the Evidence screen\'s one-line verdicts word results.findings', () =>
     expect(balanceVerdict(results({ jointP: [0.2, 0.04, 0.9] })).finding).toBe('balanced'); // adjusted 0.12
     expect(balanceVerdict(results({ jointP: [0.2, 0.01, 0.9] })).text).toMatch(/joint test at δ = 0\.1/);
     expect(balanceVerdict(results()).tone).toBe('neutral');
+    // A flagged characteristic is named as the study names it (results.study.columnLabels), as in the memo.
+    const named = results({ jointP: [0.2, 0.5, 0.9] });
+    named.balance[0]!.standardizedDiff = 0.4;
+    const flagged = withFindings(named as unknown as ResultsCore) as Results;
+    (flagged as { study: unknown }).study = { columnLabels: { X: 'Arrears the year before (USD)' } };
+    expect(balanceVerdict(flagged).text).toMatch(/beyond 0\.25 \(Rubin 2001\): Arrears the year before \(USD\) at δ = 0\.1/);
     expect(manipulationVerdict(results({ densityP: [0.3, 0.01] })).tone).toBe('caution');
     expect(manipulationVerdict(results({ densityP: [0.3, 0.07] })).text).toMatch(/^Weak sign of sorting/);
     expect(manipulationVerdict(results({ densityP: [0.3, null] })).text).toMatch(/2 density tests, 1 ran \(1 could not\); p is at least 0\.10/);
