@@ -376,27 +376,41 @@ function formatNumber(value: number): string {
   return String(value);
 }
 
+/** How printExpression writes numbers and signs; the grammar's own parentheses are the same for every style. */
+export interface ExpressionStyle {
+  number: (value: number) => string;
+  minus: string;
+  operators: Record<BinaryOp, string>;
+}
+
+const CANONICAL: ExpressionStyle = { number: formatNumber, minus: '-', operators: { '+': '+', '-': '-', '*': '*', '/': '/' } };
+
+/** An expression with as few parentheses as the grammar allows, in the given style. */
+export function printExpression(node: ExprNode, style: ExpressionStyle): string {
+  switch (node.kind) {
+    case 'num': return style.number(node.value);
+    case 'var': return node.key;
+    case 'neg': {
+      const inner = printExpression(node.arg, style);
+      return precedenceOf(node.arg) < PRECEDENCE.unary ? `${style.minus}(${inner})` : `${style.minus}${inner}`;
+    }
+    case 'bin': {
+      const l = printExpression(node.left, style);
+      const r = printExpression(node.right, style);
+      const left = needsParentheses(node.op, node.left, 'left') ? `(${l})` : l;
+      const right = needsParentheses(node.op, node.right, 'right') ? `(${r})` : r;
+      return `${left} ${style.operators[node.op]} ${right}`;
+    }
+    case 'call': return `${node.fn}(${node.args.map((a) => printExpression(a, style)).join(', ')})`;
+  }
+}
+
 /**
  * Canonical text with as few parentheses as the grammar allows; parseExpression of the result
  * gives back the same tree (spans aside) for every tree the parser can produce.
  */
 export function formatExpression(node: ExprNode): string {
-  switch (node.kind) {
-    case 'num': return formatNumber(node.value);
-    case 'var': return node.key;
-    case 'neg': {
-      const inner = formatExpression(node.arg);
-      return precedenceOf(node.arg) < PRECEDENCE.unary ? `-(${inner})` : `-${inner}`;
-    }
-    case 'bin': {
-      const l = formatExpression(node.left);
-      const r = formatExpression(node.right);
-      const left = needsParentheses(node.op, node.left, 'left') ? `(${l})` : l;
-      const right = needsParentheses(node.op, node.right, 'right') ? `(${r})` : r;
-      return `${left} ${node.op} ${right}`;
-    }
-    case 'call': return `${node.fn}(${node.args.map(formatExpression).join(', ')})`;
-  }
+  return printExpression(node, CANONICAL);
 }
 
 /**

@@ -109,7 +109,8 @@ function listWithAnd(parts: string[]): string {
   return `${parts.slice(0, -1).join(', ')} and ${parts[parts.length - 1]}`;
 }
 
-function listWithOr(parts: string[]): string {
+/** "a, b or c". */
+export function listWithOr(parts: string[]): string {
   if (parts.length <= 1) return parts.join('');
   return `${parts.slice(0, -1).join(', ')} or ${parts[parts.length - 1]}`;
 }
