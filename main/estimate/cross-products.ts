@@ -26,6 +26,8 @@
 //   Memory: m×m for HC1, G×m for CR1 — bounded by the clusters, never by the rows.
 // (Cameron & Trivedi, "Microeconometrics", 2005, §4.4 and §24.5; Wooldridge 2010, §4.2.3 and §5.2.)
 
+import { smallSampleFactor } from './variance.ts';
+
 /** Running means and centred co-moments of p columns over the rows seen so far. */
 export interface CoMoments {
   p: number;
@@ -255,7 +257,6 @@ export function clustersSeen(meat: OfferMeat): number | null {
 export function meatCovariance(meat: OfferMeat, k: number, clustered: boolean): { v: Float64Array; clusters: number | null } {
   const { m, n } = meat;
   const v = new Float64Array(m * m);
-  const df = n - k;
   if (clustered && meat.scores && meat.seen) {
     let g = 0;
     for (let c = 0; c < meat.seen.length; c++) {
@@ -264,11 +265,11 @@ export function meatCovariance(meat: OfferMeat, k: number, clustered: boolean): 
       const off = c * m;
       for (let r = 0; r < m; r++) for (let s = r; s < m; s++) v[r * m + s] = v[r * m + s]! + meat.scores[off + r]! * meat.scores[off + s]!;
     }
-    const f = (g / (g - 1)) * ((n - 1) / df);
+    const f = smallSampleFactor(n, k, g);
     for (let r = 0; r < m; r++) for (let s = r; s < m; s++) { v[r * m + s] = v[r * m + s]! * f; v[s * m + r] = v[r * m + s]!; }
     return { v, clusters: g };
   }
-  const f = n / df;
+  const f = smallSampleFactor(n, k, null);
   for (let r = 0; r < m; r++) for (let s = r; s < m; s++) { v[r * m + s] = meat.hc[r * m + s]! * f; v[s * m + r] = v[r * m + s]!; }
   return { v, clusters: null };
 }

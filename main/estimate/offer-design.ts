@@ -20,7 +20,7 @@
 import { decompose, type Decomposition } from './linalg.ts';
 import { collinearityWarnings, designNames } from './ols.ts';
 import type { EstimateWarning, NamedColumn } from './types.ts';
-import type { ClusterCodes } from './variance.ts';
+import { smallSampleFactor, type ClusterCodes } from './variance.ts';
 
 /** The variance types the design checks use: HC1 by default, CR1 with clusters (CLI.md). */
 export type OfferVariance = 'HC1' | 'CR1';
@@ -99,9 +99,8 @@ export function factorOfferDesign(offer: NamedColumn, controls: readonly NamedCo
 /** Attach the variance convention: CR1 with clusters (at least 2), else HC1. */
 export function withVariance(factor: OfferFactor, clusters: ClusterCodes | undefined): OfferDesign {
   const n = factor.n;
-  const df = n - factor.k;
   const variance: OfferVariance = clusters ? 'CR1' : 'HC1';
-  const f = clusters ? (clusters.count / (clusters.count - 1)) * ((n - 1) / df) : n / df;
+  const f = smallSampleFactor(n, factor.k, clusters ? clusters.count : null);
   return { ...factor, variance, clusters, factor: f };
 }
 

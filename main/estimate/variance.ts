@@ -98,7 +98,7 @@ export function coefficientCovariance(
       }
       const v = sandwich(dec, weightedMeat(dec, w));
       if (type === 'HC1') {
-        const f = n / df;
+        const f = smallSampleFactor(n, k, null);
         for (let i = 0; i < v.length; i++) v[i] = v[i]! * f;
       }
       return { matrix: v, clusters: null };
@@ -112,11 +112,19 @@ export function coefficientCovariance(
         throw new EstimateInputError('bad-clusters', `Cluster-robust standard errors need at least 2 clusters; the data have ${g}. Choose HC1 instead.`);
       }
       const v = sandwich(dec, clusterMeat(dec, residuals, clusters.codes, g));
-      const f = (g / (g - 1)) * ((n - 1) / df);
+      const f = smallSampleFactor(n, k, g);
       for (let i = 0; i < v.length; i++) v[i] = v[i]! * f;
       return { matrix: v, clusters: g };
     }
   }
+}
+
+/**
+ * The finite-sample factor of HC1, n/(n − k), and of CR1, G/(G − 1) · (n − 1)/(n − k) (MacKinnon and
+ * White 1985; Cameron and Miller 2015, §VI.B): `clusters` is G, or null for HC1.
+ */
+export function smallSampleFactor(n: number, k: number, clusters: number | null): number {
+  return clusters === null ? n / (n - k) : (clusters / (clusters - 1)) * ((n - 1) / (n - k));
 }
 
 /** Square roots of the diagonal of a K×K row-major covariance. */

@@ -14,7 +14,7 @@ import { collinearityWarnings, designNames, requireUnits } from './ols.ts';
 import { tsls, type TslsResult } from './tsls.ts';
 import type { EstimateWarning, NamedColumn, RegressionOptions, VarianceType } from './types.ts';
 import { checkColumns, resolveVariance } from './validate.ts';
-import { clusterCodes, type ClusterCodes } from './variance.ts';
+import { clusterCodes, smallSampleFactor, type ClusterCodes } from './variance.ts';
 
 /** One endogenous regressor, one excluded instrument, exogenous controls. */
 export interface SingleInstrumentInput {
@@ -268,7 +268,7 @@ function reducedFormCovariance(
       yd += sY[j]! * sD[j]!;
       dd += sD[j]! * sD[j]!;
     }
-    const f = ((g / (g - 1)) * ((n - 1) / df)) / (szz * szz);
+    const f = smallSampleFactor(n, dec.rank, g) / (szz * szz);
     return { yy: yy * f, yd: yd * f, dd: dd * f, clusters: g };
   }
   const h = type === 'HC2' || type === 'HC3' ? leverages(dec) : undefined;
@@ -291,7 +291,7 @@ function reducedFormCovariance(
     yd += w * eY[i]! * eD[i]!;
     dd += w * eD[i]! * eD[i]!;
   }
-  const f = (type === 'HC1' ? n / df : 1) / (szz * szz);
+  const f = (type === 'HC1' ? smallSampleFactor(n, dec.rank, null) : 1) / (szz * szz);
   return { yy: yy * f, yd: yd * f, dd: dd * f, clusters: null };
 }
 
