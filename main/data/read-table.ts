@@ -109,17 +109,23 @@ export async function readTable(path: string, opts: ReadTableOptions = {}): Prom
   }
 }
 
-async function readTableUnguarded(path: string, fileName: string, opts: ReadTableOptions): Promise<Checked<RawTable>> {
-  const { signal, onProgress } = opts;
-  if (signal?.aborted) return refuse(fileName, IMPORT_CANCELLED);
-  let size: number;
+/** The data file's size in bytes, or one plain message when it is missing, unreadable or a folder. */
+export async function dataFileSize(path: string, fileName: string): Promise<Checked<number>> {
   try {
     const info = await stat(path);
     if (info.isDirectory()) return refuse(fileName, `${path} is a folder, not a file. Choose the data file inside it.`);
-    size = info.size;
+    return { ok: true, value: info.size };
   } catch (err) {
     return { ok: false, problems: [fileProblem(err, path, fileName)] };
   }
+}
+
+async function readTableUnguarded(path: string, fileName: string, opts: ReadTableOptions): Promise<Checked<RawTable>> {
+  const { signal, onProgress } = opts;
+  if (signal?.aborted) return refuse(fileName, IMPORT_CANCELLED);
+  const sized = await dataFileSize(path, fileName);
+  if (!sized.ok) return sized;
+  const size = sized.value;
   if (opts.headerRow !== undefined && !(Number.isInteger(opts.headerRow) && opts.headerRow >= 1)) {
     return refuse(fileName, `The header row must be a whole row number, 1 or more (got ${String(opts.headerRow)}).`);
   }

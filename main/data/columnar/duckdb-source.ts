@@ -10,16 +10,14 @@
 // Refusals are one plain message naming the file and what to do; DuckDB's own errors are never
 // shown raw.
 
-import { createHash, randomUUID } from 'node:crypto';
-import { createReadStream } from 'node:fs';
-import { stat } from 'node:fs/promises';
+import { randomUUID } from 'node:crypto';
 import { tmpdir } from 'node:os';
 import { basename, extname, join } from 'node:path';
 import { DuckDBInstance, type DuckDBConnection, type DuckDBResult } from '@duckdb/node-api';
 import type { Checked, Problem } from '../../rules/types.ts';
 import { newParsedCell, parseCellText } from '../cell-text.ts';
 import { columnLetter } from '../locate.ts';
-import { fileProblem } from '../read-table.ts';
+import { dataFileSize, hashFile } from '../read-table.ts';
 import { CellKind, type RawColumn, type RawTable } from '../types.ts';
 
 export type ColumnarFormat = 'parquet' | 'csv';
@@ -75,12 +73,6 @@ const quoteText = (text: string) => `'${text.replace(/'/g, "''")}'`;
 
 function refuse(fileName: string, message: string): { ok: false; problems: Problem[] } {
   return { ok: false, problems: [{ path: fileName, message }] };
-}
-
-async function sha256Of(path: string, signal?: AbortSignal): Promise<string> {
-  const hash = createHash('sha256');
-  for await (const piece of createReadStream(path, signal ? { signal } : {})) hash.update(piece as Buffer);
-  return hash.digest('hex');
 }
 
 /** An open file: its schema, and chunks of the columns asked for. Close it when done. */
@@ -265,14 +257,9 @@ export interface OpenOptions {
 export async function openColumnar(path: string, options: OpenOptions = {}): Promise<Checked<ColumnarSource>> {
   const fileName = basename(path);
   const format: ColumnarFormat = options.format ?? (extname(path).toLowerCase() === '.csv' ? 'csv' : 'parquet');
-  let bytes: number;
-  try {
-    const info = await stat(path);
-    if (info.isDirectory()) return refuse(fileName, `${path} is a folder, not a file. Choose the data file inside it.`);
-    bytes = info.size;
-  } catch (err) {
-    return { ok: false, problems: [fileProblem(err, path, fileName)] };
-  }
+  const sized = await dataFileSize(path, fileName);
+  if (!sized.ok) return sized;
+  const bytes = sized.value;
   if (bytes === 0) return refuse(fileName, `The file ${fileName} is empty (0 bytes). Ask for the file again.`);
   const from = format === 'parquet' ? `read_parquet(${quoteText(path)})` : `read_csv(${quoteText(path)}, header = true, all_varchar = false)`;
   let instance: DuckDBInstance | null = null;
@@ -291,7 +278,7 @@ export async function openColumnar(path: string, options: OpenOptions = {}): Pro
     const columns = rows.map((r) => ({ name: String(r.column_name), type: String(r.column_type) }));
     const counted = await connection.runAndReadAll(`SELECT count(*) AS n FROM ${from}`);
     const rowCount = Number(counted.getColumnsJS()[0]?.[0] ?? 0);
-    const sha256 = await sha256Of(path, options.signal);
+    const { sha256 } = await hashFile(path, false, options.signal);
     return { ok: true, value: new ColumnarSource({ path, fileName, format, sha256, bytes, rowCount, columns }, instance, connection, from) };
   } catch {
     connection?.closeSync();
